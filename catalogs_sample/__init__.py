@@ -1,0 +1,1 @@
+"""Bundled real catalogue sample (USNO ORB6 orbits and WDS rows); see README.md here."""

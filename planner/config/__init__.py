@@ -1,0 +1,1 @@
+"""User directories, atomic storage, saved profiles and plan files."""

@@ -1,0 +1,70 @@
+"""Shared test fixtures.
+
+Network: pytest-socket blocks every socket for the whole suite (see
+``addopts`` in pyproject.toml).  Tests that need the live CDS VizieR service
+carry ``@pytest.mark.live`` and run only with ``--run-live``.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import os
+from pathlib import Path
+
+import pytest
+
+#: The shared reference folder (USNO data), present beside the checkout.
+SHARED = Path(__file__).resolve().parents[2] / "shared"
+REFERENCE = SHARED / "reference"
+DATA = Path(__file__).resolve().parent / "data"
+
+
+def pytest_addoption(parser):
+    parser.addoption("--run-live", action="store_true", default=False,
+                     help="run tests that need the live CDS VizieR service")
+
+
+def pytest_collection_modifyitems(config, items):
+    if config.getoption("--run-live"):
+        return
+    skip = pytest.mark.skip(reason="needs the live VizieR service; run with --run-live")
+    for item in items:
+        if "live" in item.keywords:
+            item.add_marker(skip)
+
+
+@pytest.fixture(autouse=True)
+def _isolated_user_dirs(tmp_path_factory, monkeypatch):
+    """Point the user config/cache/data directories at a temporary folder so
+    tests never read or write the real ones."""
+    base = tmp_path_factory.mktemp("userdirs")
+    monkeypatch.setenv("SPLITPLAN_HOME", str(base))
+    monkeypatch.setenv("MPLBACKEND", "Agg")
+    yield base
+
+
+def reference_file(name: str) -> Path:
+    """A file in ../shared/reference; the test is skipped if it is absent."""
+    p = REFERENCE / name
+    if not p.exists():
+        pytest.skip(f"shared reference file {p} not available")
+    return p
+
+
+@pytest.fixture
+def cli():
+    """Run the command line in-process: ``code, out, err = cli("catalog", "show")``."""
+    from planner.cli import main
+
+    def run(*args: str):
+        out, err = io.StringIO(), io.StringIO()
+        code = 0
+        with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+            try:
+                main(list(args))
+            except SystemExit as exc:
+                code = exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 1)
+        return code, out.getvalue(), err.getvalue()
+
+    return run
