@@ -14,8 +14,10 @@ for orbits with periods of days.
 
 ORB6 ``T`` with unit code ``d`` is a truncated Julian date, JD - 2,400,000;
 the catalogue reader converts it to a Besselian year with the formula above.
-Calendar dates are taken as UTC (the difference from TT, about a minute, is
-negligible for visual binaries).
+Calendar dates and ``datetime`` values are taken as UTC and converted without
+the TT - UTC offset (about 69 s, 2e-6 yr: negligible for visual binaries);
+an astropy ``Time`` is converted exactly through its TT scale, as
+``Time.byear`` does.
 """
 
 from __future__ import annotations
@@ -63,7 +65,9 @@ def to_epoch_yr(epoch):
     DatetimeIndex.
     """
     if hasattr(epoch, "jd1") and hasattr(epoch, "jd2"):  # astropy Time, no import needed
-        return besselian_year_from_jd(np.asarray(epoch.utc.jd1) + np.asarray(epoch.utc.jd2))
+        tt = epoch.tt  # Besselian epochs are defined on TT (Lieske 1979; astropy Time.byear)
+        out = besselian_year_from_jd(np.asarray(tt.jd1) + np.asarray(tt.jd2))
+        return float(out) if np.ndim(out) == 0 else out
     if isinstance(epoch, _dt.datetime):
         if epoch.tzinfo is not None:
             epoch = epoch.astimezone(_dt.timezone.utc).replace(tzinfo=None)

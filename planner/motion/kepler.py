@@ -88,9 +88,8 @@ def solve_kepler(mean_anomaly_rad, ecc, tol: float = 1e-13, max_iter: int = 40):
         E = E_new
         if not np.any(delta > tol):
             break
-    out = sign * E + turns * TWO_PI
-    out[bad] = np.nan
-    return out
+    out = np.where(bad, np.nan, sign * E + turns * TWO_PI)
+    return out if out.ndim else out[()]
 
 
 def kepler_residual(E_rad, mean_anomaly_rad, ecc):

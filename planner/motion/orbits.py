@@ -133,7 +133,8 @@ def orbit_xy(period_yr, t_peri_yr, ecc, A, B, F, G, epoch_yr):
     M = 2.0 * np.pi * (np.asarray(epoch_yr, dtype=float) - t_peri_yr) / period_yr
     E = solve_kepler(M, ecc)
     X = np.cos(E) - ecc
-    Y = np.sqrt(1.0 - ecc * ecc) * np.sin(E)
+    with np.errstate(invalid="ignore"):  # e >= 1 already gave E = NaN
+        Y = np.sqrt(1.0 - ecc * ecc) * np.sin(E)
     return A * X + F * Y, B * X + G * Y
 
 
