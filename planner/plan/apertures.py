@@ -1,0 +1,133 @@
+"""How many pairs each aperture splits: tonight, or over a range of nights.
+
+For each aperture (same obstruction, seeing, site and catalogue) every pair
+is judged at its best time of the night; a pair *counts* when the verdict is
+``split`` and it is up in the dark long enough for one observing slot.  Over
+a date range a few nights are sampled evenly (``nights``) and a pair counts
+when it splits on at least one of them.  The pairs "added" by a step are
+those the larger aperture splits and the previous (smaller) one does not.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+
+import numpy as np
+import pandas as pd
+
+from planner.errors import InputError
+from planner.plan import bridge
+from planner.plan.model import NightRequest
+
+
+def _dates(date_from: str, date_to: str | None, nights: int) -> list[str]:
+    a = _dt.date.fromisoformat(date_from)
+    if not date_to:
+        return [a.isoformat()]
+    try:
+        b = _dt.date.fromisoformat(date_to)
+    except ValueError:
+        raise InputError(f"date {date_to!r} is not a valid YYYY-MM-DD date") from None
+    if b < a:
+        raise InputError(f"--to {date_to} is before --from {date_from}")
+    span = (b - a).days
+    n = max(1, min(int(nights), span + 1))
+    offs = np.unique(np.round(np.linspace(0, span, n)).astype(int))
+    return [(a + _dt.timedelta(days=int(o))).isoformat() for o in offs]
+
+
+def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None = None,
+                      nights: int = 4, catalog=None) -> dict:
+    """Counts per aperture and the pairs each step adds.
+
+    ``request`` gives the site, date (start of the range), seeing, filters and
+    the obstruction (of its first scope).  Returns a dict with ``dates``,
+    ``table`` (DataFrame: ``aperture_mm``, ``n_split``, ``n_added``, ``added``)
+    and ``pairs`` (DataFrame of every pair split by the largest aperture with
+    the smallest aperture that splits it, ``first_aperture_mm``).
+    """
+    from planner.plan.night import prepare, resolve_seeing
+
+    aps = sorted({float(a) for a in apertures_mm})
+    if not aps:
+        raise InputError("give at least one aperture in mm, e.g. 60 80 102 127")
+    for a in aps:
+        if not 10 <= a <= 3000:
+            raise InputError(f"aperture {a:g} mm is outside 10-3000 mm")
+    if request.date is None:
+        from planner.plan.night import parse_date
+
+        request.date = parse_date(None, bridge.make_site(request.site, request.site_name))
+    dates = _dates(request.date, date_to, nights)
+    seeing, origin = resolve_seeing(request)
+    base_scope = dict(request.scopes[0]) if request.scopes else {}
+    obstruction = float(base_scope.get("obstruction", 0.0))
+    split_any = None
+    table = None
+    for d in dates:
+        req = dataclasses.replace(request, date=d)
+        site, night, ninfo, cat, table, vis, epoch = prepare(req, catalog)
+        catalog = cat
+        up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
+        x = vis["airmass_best"].to_numpy(float)
+        x = np.where(np.isfinite(x), x, 40.0)
+        sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
+        cols = []
+        for a in aps:
+            tel = bridge.make_telescope({"aperture_mm": a, "obstruction": obstruction,
+                                         "kind": base_scope.get("kind")}, f"{a:g} mm")
+            v = bridge.judge(tel, table, seeing, x, sky_mag=sky)
+            cols.append((v["verdict"].astype(str).to_numpy() == "split") & up)
+        m = np.stack(cols, axis=1) if cols else np.zeros((len(table), 0), bool)
+        m = pd.DataFrame(m, index=table.index)
+        split_any = m if split_any is None else split_any.reindex(split_any.index.union(m.index), fill_value=False) | m.reindex(split_any.index.union(m.index), fill_value=False)
+    mat = split_any.to_numpy(bool)
+    counts = mat.sum(axis=0)
+    names = table.reindex(split_any.index)
+    rows = []
+    prev = np.zeros(len(mat), bool)
+    for k, a in enumerate(aps):
+        new = mat[:, k] & ~prev
+        label = (names["discoverer"].astype(str) + " " + names["components"].astype(str)).str.strip().to_numpy()
+        rows.append({"aperture_mm": a, "n_split": int(counts[k]), "n_added": int(new.sum()),
+                     "added": [str(x) for x in label[new]]})
+        prev = mat[:, k]
+    any_k = mat.any(axis=1)
+    first = np.where(any_k, np.array(aps)[np.argmax(mat, axis=1)] if len(aps) else np.nan, np.nan)
+    pairs = pd.DataFrame({"wds_id": names["wds_id"].to_numpy(), "discoverer": names["discoverer"].to_numpy(),
+                          "components": names["components"].to_numpy(),
+                          "rho_arcsec": names["rho_arcsec"].to_numpy(float),
+                          "first_aperture_mm": first}, index=split_any.index)[any_k]
+    return {"dates": dates, "seeing_arcsec": seeing, "seeing_origin": origin, "obstruction": obstruction,
+            "table": pd.DataFrame(rows), "pairs": pairs.sort_values("first_aperture_mm", kind="stable")}
+
+
+def plot_counts(result: dict, path) -> None:
+    """Count of split pairs versus aperture (matplotlib; PNG, SVG or PDF by extension)."""
+    import io
+
+    import matplotlib
+
+    matplotlib.use("Agg", force=False)
+    import matplotlib.pyplot as plt
+
+    from planner.config.storage import atomic_write_bytes
+
+    t = result["table"]
+    fig, ax = plt.subplots(figsize=(6.4, 4.0), dpi=110)
+    ax.plot(t["aperture_mm"], t["n_split"], "o-", color="#2b6cb0")
+    for a, n in zip(t["aperture_mm"], t["n_split"]):
+        ax.annotate(str(n), (a, n), textcoords="offset points", xytext=(0, 6), ha="center", fontsize=8)
+    ax.set_xlabel("clear aperture [mm]")
+    ax.set_ylabel("pairs split")
+    d = result["dates"]
+    span = d[0] if len(d) == 1 else f"{d[0]} to {d[-1]} ({len(d)} nights)"
+    ax.set_title(f"Pairs within reach, {span}, seeing {result['seeing_arcsec']:.2g}\"", fontsize=10)
+    ax.grid(alpha=0.3)
+    fig.tight_layout()
+    buf = io.BytesIO()
+    ext = str(path).rsplit(".", 1)[-1].lower()
+    fig.savefig(buf, format=ext if ext in ("png", "svg", "pdf") else "png")
+    plt.close(fig)
+    atomic_write_bytes(path, buf.getvalue())

@@ -1,0 +1,103 @@
+"""The plan layer's one door to the modules on its left.
+
+Catalogue loading, today's geometry, the sky engine and the optics verdict
+are built by other parts of the package; this module calls them through a
+few small functions with fixed signatures, so that the planner does not
+depend on the exact shape of each engine's API and any adaptation lives in
+one place.
+"""
+
+from __future__ import annotations
+
+import inspect
+
+import numpy as np
+
+from planner.errors import InputError
+
+
+def _kwargs_for(fn, kw: dict) -> dict:
+    """Keep only the keyword arguments ``fn`` accepts."""
+    try:
+        params = inspect.signature(fn).parameters
+    except (TypeError, ValueError):
+        return kw
+    if any(p.kind is inspect.Parameter.VAR_KEYWORD for p in params.values()):
+        return kw
+    return {k: v for k, v in kw.items() if k in params}
+
+
+# -- catalogue and geometry ------------------------------------------------------
+
+def load_catalog(spec: str):
+    from planner.catalogs.catalog import load_catalog as _load
+
+    return _load(spec)
+
+
+def geometry(catalog, epoch_yr: float):
+    """rho, theta tonight per pair (aligned with ``catalog.pairs.index``)."""
+    from planner.motion import pair_geometry
+
+    return pair_geometry(catalog, epoch_yr)
+
+
+# -- site, night, positions ------------------------------------------------------
+
+def make_site(d: dict, name: str = ""):
+    from planner.sky.site import Site
+
+    kw = {k: d[k] for k in ("lat_deg", "lon_deg", "elevation_m", "tz", "min_alt_deg") if k in d}
+    if d.get("horizon_file"):
+        kw["horizon"] = d["horizon_file"]
+    return Site(name=name or d.get("name", ""), **kw)
+
+
+def make_night(site, local_date, darkness: str):
+    from planner.sky import night_for
+
+    return night_for(site, local_date, **_kwargs_for(night_for, {"darkness": darkness}))
+
+
+def altaz(ra_deg, dec_deg, site, when_utc):
+    """Geometric altitude and azimuth (deg) of J2000 positions at UTC instant(s)."""
+    from planner.sky import altaz as _altaz
+
+    return _altaz(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site.lat_deg, site.lon_deg,
+                  np.asarray(when_utc, "datetime64[ns]"))
+
+
+def airmass(alt_deg):
+    from planner.sky.atmosphere import airmass as _airmass
+
+    return np.asarray(_airmass(np.asarray(alt_deg, float)), float)
+
+
+def visibility(ra_deg, dec_deg, site, night):
+    from planner.sky import visibility as _vis
+
+    return _vis(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, night)
+
+
+# -- optics and verdict ---------------------------------------------------------
+
+def make_telescope(d: dict, name: str = ""):
+    from planner.optics import Telescope
+
+    kw = {"aperture_mm": d.get("aperture_mm"), "obstruction": d.get("obstruction", 0.0),
+          "kind": d.get("kind"), "focal_mm": d.get("focal_mm"),
+          "wavelength_nm": d.get("wavelength_nm"), "name": name or d.get("name", "")}
+    kw = {k: v for k, v in kw.items() if v is not None}
+    if kw.get("aperture_mm") is None:
+        raise InputError("a telescope needs an aperture in mm (--aperture 102)")
+    return Telescope(**_kwargs_for(Telescope, kw))
+
+
+def judge(telescope, pairs, seeing_arcsec: float, airmass_x, sky_mag=None):
+    """The verdict table for ``pairs`` (rho_arcsec, mag1, mag2 columns) with this scope."""
+    from planner.verdict import judge as _judge
+
+    kw = {"seeing_arcsec": seeing_arcsec, "airmass": airmass_x}
+    if sky_mag is not None:
+        kw["sky_mag_arcsec2"] = sky_mag
+    return _judge(telescope, pairs, **_kwargs_for(_judge, kw))
