@@ -3,7 +3,9 @@ sample and a user's own target list.  All return pandas DataFrames in the
 schemas of :mod:`planner.schema`.
 
 Public entry points (stable): :func:`read_wds`, :func:`read_orb6`,
-:func:`load_sample`.  pandas is imported only when a reader is called.
+:func:`load_sample`; also :func:`load_catalog`, :func:`find_pair`,
+:func:`read_target_list`, :func:`restrict`.  pandas is imported only when one
+of them is called.
 """
 
 from __future__ import annotations
@@ -30,4 +32,34 @@ def load_sample():
     return _load()
 
 
-__all__ = ["read_wds", "read_orb6", "load_sample"]
+def load_catalog(spec="sample", orbits=None):
+    """A :class:`~planner.catalogs.catalog.Catalog` from 'sample', 'vizier' or a file path;
+    see :func:`planner.catalogs.catalog.load_catalog`."""
+    from planner.catalogs.catalog import load_catalog as _load
+
+    return _load(spec, orbits=orbits)
+
+
+def find_pair(catalog, query):
+    """Row label of the pair named ``query``; see :func:`planner.catalogs.catalog.find_pair`."""
+    from planner.catalogs.catalog import find_pair as _find
+
+    return _find(catalog, query)
+
+
+def read_target_list(path):
+    """A user's CSV list of pairs; see :func:`planner.catalogs.userlist.read_target_list`."""
+    from planner.catalogs.userlist import read_target_list as _read
+
+    return _read(path)
+
+
+def restrict(catalog, targets):
+    """The catalogue cut to a target list; see :func:`planner.catalogs.userlist.restrict`."""
+    from planner.catalogs.userlist import restrict as _restrict
+
+    return _restrict(catalog, targets)
+
+
+__all__ = ["read_wds", "read_orb6", "load_sample", "load_catalog", "find_pair",
+           "read_target_list", "restrict"]

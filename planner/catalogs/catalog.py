@@ -1,0 +1,328 @@
+"""The loaded catalogue: pair table + orbit table, where they came from, and
+pair look-up by name.
+
+* :class:`Catalog` -- the dataclass every later stage receives.
+* :func:`pairs_from_orbits` -- pair rows for ORB6 systems (no invented data).
+* :func:`merge` -- WDS pairs plus ORB6 orbits, ``has_orbit`` set.
+* :func:`load_catalog` -- ``'sample'``, ``'vizier'`` or a file path.
+* :func:`find_pair` -- a WDS id or a designation to a row label.
+
+Matching of pairs and orbits: on WDS id plus a component key, where blanks
+are dropped, a hyphen counts as a comma (``AB-C`` = ``AB,C``) and a blank
+component label counts as ``AB`` (the WDS leaves the label blank for a plain
+pair, ORB6 often writes ``AB``).
+"""
+
+from __future__ import annotations
+
+import difflib
+import re
+import sys
+from dataclasses import dataclass, field
+from datetime import date
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from planner.errors import InputError, UnknownPairError
+from planner.schema import ORBIT_COLUMNS, PAIR_COLUMNS
+
+_DTYPES = {"float": "float64", "str": "str", "bool": "bool"}
+
+
+@dataclass
+class Catalog:
+    """A loaded catalogue.
+
+    ``pairs``: pair table (:data:`planner.schema.PAIR_COLUMNS`), one row per pair;
+    ``orbits``: orbit table (:data:`planner.schema.ORBIT_COLUMNS`);
+    ``source``: where it came from (text); ``retrieved``: ISO date of the copy;
+    ``problems``: skipped lines as ``(file, line_no, reason)``.
+    """
+
+    pairs: pd.DataFrame
+    orbits: pd.DataFrame
+    source: str
+    retrieved: str
+    problems: list = field(default_factory=list)
+
+    def summary(self) -> dict:
+        """Counts for a quick look: pairs, pairs with a usable orbit, orbits by grade."""
+        grades = self.orbits["grade"].dropna().astype(int).value_counts().sort_index()
+        return {
+            "source": self.source,
+            "retrieved": self.retrieved,
+            "pairs": int(len(self.pairs)),
+            "pairs_with_usable_orbit": int(self.pairs["has_orbit"].sum()),
+            "orbits": int(len(self.orbits)),
+            "orbits_complete": int(self.orbits["complete"].sum()),
+            "orbits_by_grade": {str(k): int(v) for k, v in grades.items()},
+            "problems": len(self.problems),
+        }
+
+
+def empty_table(columns) -> pd.DataFrame:
+    """An empty table with the schema's columns and types."""
+    return pd.DataFrame({c.name: pd.Series([], dtype=_DTYPES.get(c.dtype, "float64"))
+                         for c in columns})
+
+
+def empty_orbits() -> pd.DataFrame:
+    return empty_table(ORBIT_COLUMNS)
+
+
+def component_key(comp: pd.Series) -> pd.Series:
+    """Normalised component label for matching: no blanks, '-' -> ',', '' -> 'AB'."""
+    k = comp.fillna("").astype(str).str.replace(" ", "", regex=False).str.replace("-", ",", regex=False)
+    return k.where(k != "", "AB")
+
+
+def usable_orbit(orbits: pd.DataFrame) -> pd.Series:
+    """Orbits good enough to place a pair: complete elements and a visual grade 1-5."""
+    return orbits["complete"].astype(bool) & orbits["grade"].between(1, 5)
+
+
+def pairs_from_orbits(orbits: pd.DataFrame) -> pd.DataFrame:
+    """One pair row per (wds_id, components) of ``orbits``, from its preferred orbit.
+
+    Carries the ORB6 identification, position, magnitudes and flags, and
+    ``year_last`` from the orbit's last observation.  Catalogued separations,
+    angles, first year and number of measures stay NaN: ORB6 does not list
+    them (nothing is invented).  ``source`` = 'orb6'.
+    """
+    o = orbits[orbits["preferred"].astype(bool)]
+    n = len(o)
+    out = empty_table(PAIR_COLUMNS).reindex(range(n))
+    for c in ("wds_id", "discoverer", "components", "ra_deg", "dec_deg", "mag1", "mag2",
+              "mag1_flag", "mag2_flag", "line_no"):
+        out[c] = o[c].to_numpy()
+    out["year_last"] = o["year_last_obs"].to_numpy(float)
+    for c in ("spectral_type", "dm_id", "note_flags"):
+        out[c] = np.full(n, "")
+    out["coord_precise"] = np.ones(n, bool)  # ORB6 gives hhmmss.ss / ddmmss.s positions
+    out["has_orbit"] = usable_orbit(o).to_numpy(bool)
+    out["source"] = np.full(n, "orb6")
+    for c in PAIR_COLUMNS:
+        if c.dtype == "str":
+            out[c.name] = out[c.name].fillna("").astype(str)
+        elif c.dtype == "bool":
+            out[c.name] = out[c.name].fillna(False).astype(bool)
+        else:
+            out[c.name] = out[c.name].astype(float)
+    return out
+
+
+def merge(wds_pairs: pd.DataFrame | None, orbits: pd.DataFrame | None, source: str = "",
+          retrieved: str = "", problems: list | None = None) -> Catalog:
+    """WDS pairs plus ORB6 orbits as one :class:`Catalog`.
+
+    WDS rows win; ORB6 systems with no WDS row (same WDS id and component
+    key, see the module notes) are added from :func:`pairs_from_orbits`.
+    ``has_orbit`` is True where a complete grade 1-5 orbit matches.
+    """
+    if orbits is None:
+        orbits = empty_orbits()
+    if wds_pairs is None:
+        wds_pairs = empty_table(PAIR_COLUMNS)
+    w = wds_pairs.reset_index(drop=True)
+    okey = orbits["wds_id"].astype(str) + "|" + component_key(orbits["components"])
+    wkey = w["wds_id"].astype(str) + "|" + component_key(w["components"])
+    usable_keys = set(okey[usable_orbit(orbits)].tolist())
+    w = w.assign(has_orbit=wkey.isin(usable_keys).to_numpy(bool))
+    extra = pairs_from_orbits(orbits)
+    if len(extra):
+        ekey = extra["wds_id"] + "|" + component_key(extra["components"])
+        extra = extra[~ekey.isin(set(wkey.tolist())).to_numpy()]
+    parts = [p for p in (w, extra) if len(p)]
+    pairs = pd.concat(parts, ignore_index=True) if parts else empty_table(PAIR_COLUMNS)
+    pairs = pairs[[c.name for c in PAIR_COLUMNS]]
+    pairs.attrs = {}
+    orbits = orbits.reset_index(drop=True)
+    orbits.attrs = {}
+    return Catalog(pairs=pairs, orbits=orbits, source=source,
+                   retrieved=retrieved or date.today().isoformat(), problems=list(problems or []))
+
+
+# -- loading ------------------------------------------------------------------
+
+
+def detect_kind(path) -> str:
+    """'wds' or 'orb6' from the content of a text file (the first data lines)."""
+    from planner.catalogs import _fixed as fx
+
+    p, data = fx.read_bytes(path, "catalogue")
+    head = [ln for ln in fx.split_lines(data[:200_000]) if ln.strip() and not ln.startswith(b"#")]
+    arr_w = fx.to_array(head[:200], 130)
+    arr_o = fx.to_array(head[:200], 264)
+    n_w = int(fx.wds_id_ok(fx.col(arr_w, 1, 10)).sum())
+    n_o = int(fx.wds_id_ok(fx.col(arr_o, 20, 29)).sum())
+    if n_w == 0 and n_o == 0:
+        raise InputError(f"{str(p)!r} is neither a WDS summary nor an ORB6 orbits text file "
+                         "(no WDS id found in columns 1-10 or 20-29)")
+    return "orb6" if n_o > n_w else "wds"
+
+
+def _problems(df, file) -> list:
+    return [(str(file), ln, why) for ln, why in df.attrs.get("problems", [])]
+
+
+def _retrieved(path: Path) -> str:
+    from datetime import datetime, timezone
+
+    return datetime.fromtimestamp(path.stat().st_mtime, timezone.utc).date().isoformat()
+
+
+def load_files(path, orbits=None, use_cache: bool = True) -> Catalog:
+    """A catalogue from a WDS or ORB6 file (kind detected from the content),
+    with an optional ORB6 file of orbits for a WDS file."""
+    from planner.catalogs.cache import cached_read
+    from planner.catalogs.orb6 import read_orb6
+    from planner.catalogs.wds import read_wds
+
+    path = Path(path).expanduser()
+    kind = detect_kind(path)
+    problems: list = []
+    wds = orb = None
+    if kind == "wds":
+        wds = cached_read(path, "wds", read_wds, use_cache)
+        problems += _problems(wds, path)
+    else:
+        orb = cached_read(path, "orb6", read_orb6, use_cache)
+        problems += _problems(orb, path)
+    if orbits is not None:
+        op = Path(orbits).expanduser()
+        if detect_kind(op) != "orb6":
+            raise InputError(f"{str(op)!r} is not an ORB6 orbits text file")
+        more = cached_read(op, "orb6", read_orb6, use_cache)
+        problems += _problems(more, op)
+        orb = more if orb is None else pd.concat([orb, more], ignore_index=True)
+    source = f"{kind.upper()} file {path}" + (f" + ORB6 file {orbits}" if orbits else "")
+    return merge(wds, orb, source=source, retrieved=_retrieved(path), problems=problems)
+
+
+def load_catalog(spec: str = "sample", orbits=None) -> Catalog:
+    """Load a catalogue: ``'sample'`` (bundled), ``'vizier'`` (the local
+    snapshot of the CDS VizieR download; falls back to the sample, saying so
+    on stderr), or the path of a WDS summary or ORB6 orbits file
+    (``orbits``: an optional ORB6 file to go with a WDS file)."""
+    spec = str(spec)
+    if spec == "sample":
+        from planner.catalogs.sample import load_sample
+
+        return load_sample()
+    if spec == "vizier":
+        from planner.catalogs.vizier import load_snapshot_or_fallback
+
+        return load_snapshot_or_fallback()
+    p = Path(spec).expanduser()
+    if not p.exists():
+        raise InputError(f"catalogue {spec!r} not found; use 'sample', 'vizier' or the path "
+                         "of a WDS summary or ORB6 orbits file")
+    return load_files(p, orbits=orbits)
+
+
+# -- look-up ------------------------------------------------------------------
+
+_WDS_ID = re.compile(r"^\d{5}[+-]\d{4}$")
+
+
+def _norm(s) -> str:
+    return re.sub(r"[\s,\-]", "", str(s)).upper()
+
+
+def _names(pairs: pd.DataFrame) -> tuple[pd.Series, pd.Series]:
+    disc = pairs["discoverer"].astype(str).map(_norm)
+    full = disc + pairs["components"].astype(str).map(_norm)
+    return disc, full
+
+
+def _best_of(pairs: pd.DataFrame, idx) -> object:
+    """Among several rows of one system: a pair with a usable orbit first
+    (closest catalogued separation, then brightest), else the AB (or blank)
+    pair, else the closest, else the first."""
+    sub = pairs.loc[list(idx)]
+    if len(sub) == 1:
+        return sub.index[0]
+    ab = component_key(sub["components"]) == "AB"
+    sep = sub["sep_last_arcsec"].fillna(np.inf)
+    mag = sub["mag1"].fillna(99) + sub["mag2"].fillna(99)
+    order = pd.DataFrame({"orbit": ~sub["has_orbit"].astype(bool), "ab": ~ab, "sep": sep,
+                          "mag": mag, "pos": np.arange(len(sub))}, index=sub.index)
+    order = order.sort_values(["orbit", "ab", "sep", "mag", "pos"], kind="stable")
+    return order.index[0]
+
+
+def find_pair(catalog: Catalog, query: str):
+    """The index label of the pair named by ``query`` in ``catalog.pairs``.
+
+    Accepts a WDS id (``18055+0230``), a discoverer designation with or
+    without blanks and components (``STF2272AB``, ``STF 2272 AB``, ``stf2272``)
+    or another ORB6 name (``alp Cen``).  When a system has several pairs and
+    no components are given: the pair with a usable orbit, then the AB pair,
+    then the closest, then the brightest (see :func:`_best_of`).  Unknown
+    names raise :class:`planner.errors.UnknownPairError` with close matches.
+    """
+    pairs = catalog.pairs
+    q = str(query).strip()
+    if not q:
+        raise InputError("empty pair name; give a WDS id such as 18055+0230 or a designation "
+                         "such as STF2272AB")
+    qn = _norm(q)
+    m = re.match(r"^(\d{5}[+-]\d{4})\s*([A-Za-z].*)?$", q)
+    if m:
+        sel = pairs.index[(pairs["wds_id"] == m.group(1)).to_numpy()]
+        if m.group(2):
+            ck = component_key(pd.Series([m.group(2)])).iloc[0]
+            sel2 = [i for i in sel if component_key(pairs.loc[[i], "components"]).iloc[0] == ck]
+            if sel2:
+                return sel2[0]
+        elif len(sel):
+            return _best_of(pairs, sel)
+    else:
+        disc, full = _names(pairs)
+        hit = pairs.index[(full == qn).to_numpy()]
+        if len(hit):
+            return _best_of(pairs, hit)
+        hit = pairs.index[(disc == qn).to_numpy()]
+        if len(hit):
+            return _best_of(pairs, hit)
+        # "STF2272AB" where the components are spelt AB in the catalogue but blank in the
+        # query's system, or the plain pair given as "...AB"
+        if qn.endswith("AB"):
+            hit = pairs.index[((disc == qn[:-2]) & (component_key(pairs["components"]) == "AB"))
+                              .to_numpy()]
+            if len(hit):
+                return _best_of(pairs, hit)
+    raise UnknownPairError(q, suggest(catalog, q))
+
+
+def suggest(catalog: Catalog, query: str, n: int = 5) -> list[str]:
+    """Close matches for ``query`` among WDS ids and designations (difflib)."""
+    pairs = catalog.pairs
+    disc, full = _names(pairs)
+    labels = (pairs["discoverer"].astype(str) + np.where(pairs["components"].astype(str) != "",
+                                                         " " + pairs["components"].astype(str), ""))
+    cand: dict[str, str] = {}
+    for key, lab in zip(full.tolist(), labels.tolist()):
+        cand.setdefault(key, lab)
+    for key, lab in zip(disc.tolist(), pairs["discoverer"].astype(str).tolist()):
+        cand.setdefault(key, lab)
+    q = str(query).strip()
+    out = []
+    if re.match(r"^\d", q):
+        ids = pairs["wds_id"].astype(str).unique().tolist()
+        out += difflib.get_close_matches(q, ids, n=n, cutoff=0.6)
+    keys = difflib.get_close_matches(_norm(q), list(cand), n=n, cutoff=0.6)
+    out += [cand[k] for k in keys]
+    seen, res = set(), []
+    for s in out:
+        if s not in seen:
+            seen.add(s)
+            res.append(s)
+    return res[:n]
+
+
+def note(message: str) -> None:
+    """A one-line notice on stderr."""
+    print(f"splitplan: {message}", file=sys.stderr)

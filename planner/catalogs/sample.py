@@ -1,0 +1,48 @@
+"""The bundled real sample: every ORB6 orbit of the late-2008 USNO snapshot
+and the genuine WDS summary rows, shipped in the package
+``planner.catalogs_sample`` (top-level ``catalogs_sample/`` in the source
+tree, installed as package data so a plain ``pip install .`` finds it).
+
+Parsed files are cached (:mod:`planner.catalogs.cache`), so a second call
+only unpickles.
+"""
+
+from __future__ import annotations
+
+from contextlib import ExitStack
+from importlib import resources
+
+from planner.catalogs.catalog import Catalog, merge
+
+PACKAGE = "planner.catalogs_sample"
+WDS_FILE = "wds_summary_rows.txt"
+ORB6_FILE = "orb6_orbits.txt"
+SOURCE = ("bundled sample: USNO ORB6 orbits (late-2008 snapshot) + 3 USNO WDS summary rows")
+#: the newest ORB6 references are from November 2008; the WDS rows have last
+#: measures up to 2015 (see catalogs_sample/README.md)
+RETRIEVED = "2008-11"
+
+
+def sample_paths():
+    """Context-managed real paths of the two sample files (works from a wheel or a zip)."""
+    stack = ExitStack()
+    root = resources.files(PACKAGE)
+    wds = stack.enter_context(resources.as_file(root / WDS_FILE))
+    orb = stack.enter_context(resources.as_file(root / ORB6_FILE))
+    return stack, wds, orb
+
+
+def load_sample(use_cache: bool = True) -> Catalog:
+    """The bundled real sample as a :class:`~planner.catalogs.catalog.Catalog`
+    (3 WDS pairs plus one pair per ORB6 system without a WDS row)."""
+    from planner.catalogs.cache import cached_read
+    from planner.catalogs.orb6 import read_orb6
+    from planner.catalogs.wds import read_wds
+
+    stack, wds_path, orb_path = sample_paths()
+    with stack:
+        wds = cached_read(wds_path, "wds", read_wds, use_cache)
+        orb = cached_read(orb_path, "orb6", read_orb6, use_cache)
+    problems = [(WDS_FILE, ln, why) for ln, why in wds.attrs.get("problems", [])]
+    problems += [(ORB6_FILE, ln, why) for ln, why in orb.attrs.get("problems", [])]
+    return merge(wds, orb, source=SOURCE, retrieved=RETRIEVED, problems=problems)
