@@ -191,11 +191,38 @@ def apply_proper_motion(ra_deg, dec_deg, pm_ra_masyr, pm_dec_masyr, years):
 
 
 def _pair_key(df: pd.DataFrame) -> pd.Series:
-    """Link key between the pair and orbit tables: WDS id + components
-    (spaces removed; a blank component field means the plain pair 'AB')."""
-    comp = _txt(df, "components").str.replace(" ", "", regex=False)
-    comp = comp.where(comp != "", "AB")
-    return _txt(df, "wds_id").str.strip() + "|" + comp
+    """Link key between the pair and orbit tables: WDS id + the catalogue's
+    component key (blanks dropped, '-' = ',', a blank label = 'AB'), the same
+    rule :func:`planner.catalogs.catalog.merge` uses for ``has_orbit``."""
+    from planner.catalogs.catalog import component_key
+
+    return _txt(df, "wds_id").str.strip() + "|" + component_key(_txt(df, "components"))
+
+
+def _disc_key(df: pd.DataFrame) -> pd.Series:
+    return _txt(df, "discoverer").str.replace(r"[\s,\-]", "", regex=True).str.upper()
+
+
+def _link_orbits(pairs: pd.DataFrame, orbits: pd.DataFrame) -> np.ndarray:
+    """Position (0..n-1) in ``pairs`` of the pair each orbit belongs to, NaN if none.
+
+    First on WDS id + component key + discoverer; an orbit left over is
+    linked on WDS id + component key alone when exactly one pair has that key
+    (e.g. bet Sco, 16054-1948: ORB6 rows for 'bet Sco' and 'BU 947 AB' both
+    have the component key AB and must not be mixed).
+    """
+    pk, ok = _pair_key(pairs), _pair_key(orbits)
+    pfull, ofull = pk + "|" + _disc_key(pairs), ok + "|" + _disc_key(orbits)
+    pos = np.arange(len(pairs), dtype=float)
+    full_map = pd.Series(pos, index=pfull.to_numpy())
+    full_map = full_map[~full_map.index.duplicated(keep="first")]
+    out = full_map.reindex(ofull.to_numpy()).to_numpy(dtype=float)
+    counts = pk.value_counts()
+    unique_keys = counts.index[counts.to_numpy() == 1]
+    key_map = pd.Series(pos, index=pk.to_numpy())
+    key_map = key_map[key_map.index.isin(unique_keys)]
+    fallback = key_map.reindex(ok.to_numpy()).to_numpy(dtype=float)
+    return np.where(np.isfinite(out), out, fallback)
 
 
 def _orbit_choice(pairs: pd.DataFrame, orbits: pd.DataFrame, t_pair: np.ndarray, precession: str) -> pd.DataFrame:
@@ -204,10 +231,7 @@ def _orbit_choice(pairs: pd.DataFrame, orbits: pd.DataFrame, t_pair: np.ndarray,
     cols = ["pair", "rho", "theta", "grade", "reference", "spread_rho", "spread_theta", "n", "class"]
     if orbits is None or len(orbits) == 0 or len(pairs) == 0:
         return pd.DataFrame(columns=cols).set_index("pair")
-    key_to_pair = pd.Series(np.arange(len(pairs)), index=_pair_key(pairs).to_numpy())
-    key_to_pair = key_to_pair[~key_to_pair.index.duplicated(keep="first")]
-    okey = _pair_key(orbits).to_numpy()
-    pos_pair = key_to_pair.reindex(okey).to_numpy()
+    pos_pair = _link_orbits(pairs, orbits)
     linked = np.isfinite(pos_pair)
     o = orbits.iloc[np.flatnonzero(linked)]
     pair_pos = pos_pair[linked].astype(int)
@@ -328,13 +352,20 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
                              "orbit; uncertainty = floor for the orbit grade")
         reason[i] = np.where(visual, reason[i], "interferometric orbit (grade 8); " + reason[i].astype(str))
     # pairs with only astrometric/incomplete orbits say so
-    if orbits is not None and len(orbits):
-        okeys = _pair_key(orbits)
-        g = _num(orbits, "grade")
-        astro_keys = set(okeys[g == 9])
-        pk = _pair_key(pairs).to_numpy()
-        only_astro = np.isin(pk, list(astro_keys)) & ~np.isin(method, ["orbit", "orbit-interferometric"])
+    if orbits is not None and len(orbits) and n:
+        link = _link_orbits(pairs, orbits)
+        astro = link[(_num(orbits, "grade") == 9) & np.isfinite(link)].astype(int)
+        has_astro = np.zeros(n, bool)
+        has_astro[astro] = True
+        only_astro = has_astro & ~np.isin(method, ["orbit", "orbit-interferometric"])
         reason[only_astro] = "astrometric orbit only (grade 9, no separation); " + reason[only_astro].astype(str)
+        incomplete = ~(orbits["complete"].fillna(False).to_numpy(bool)) if "complete" in orbits.columns \
+            else np.zeros(len(orbits), bool)
+        inc = link[incomplete & np.isfinite(link)].astype(int)
+        has_inc = np.zeros(n, bool)
+        has_inc[inc] = True
+        only_inc = has_inc & ~np.isin(method, ["orbit", "orbit-interferometric"])
+        reason[only_inc] = "orbit with incomplete elements (not used); " + reason[only_inc].astype(str)
 
     ra_d, dec_d = apply_proper_motion(_num(pairs, "ra_deg"), _num(pairs, "dec_deg"), _num(pairs, "pm1_ra_masyr"),
                                       _num(pairs, "pm1_dec_masyr"), t - COORD_EPOCH_YR)
