@@ -1,0 +1,223 @@
+"""Observing site and horizon profile.
+
+A :class:`Site` is a frozen dataclass validated when it is made: every bad
+value raises :class:`planner.errors.InputError` with one line naming the
+value and what is allowed.
+
+Conventions
+-----------
+* Latitude north positive, -90..+90 deg.
+* Longitude EAST positive.  Both -180..+180 and 0..360 are accepted; values
+  above 180 are folded to the -180..180 range (``lon_deg=350`` is stored
+  as ``-10``).
+* Elevation above sea level in metres, -500..9000 (the Dead Sea shore is
+  -430 m; nobody observes above 9 km).
+* ``tz``: an IANA zone name ("Europe/Paris", "America/Santiago", "UTC").
+  The zone is used only to pick the night and to show local times;
+  everything inside the package is UTC.
+* ``min_alt_deg``: the lowest APPARENT altitude worth observing, 0..80 deg.
+* ``pressure_hpa``: station pressure; if omitted it is derived from the
+  elevation with the standard-atmosphere formula
+  P = 1013.25 (1 - 2.25577e-5 h)^5.25588 hPa (ISO 2533 / U.S. Standard
+  Atmosphere 1976; same as ``pvlib.atmosphere.alt2pres``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from planner.errors import InputError
+
+__all__ = ["Site", "Horizon"]
+
+
+def _num(name: str, value, lo: float, hi: float, unit: str) -> float:
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} {value!r} is not a number; allowed {lo:g} to {hi:g} {unit}") from None
+    if not math.isfinite(v) or v < lo or v > hi:
+        raise InputError(f"{name} {value!r} is out of range; allowed {lo:g} to {hi:g} {unit}")
+    return v
+
+
+@dataclass(frozen=True)
+class Horizon:
+    """Local horizon profile: altitude (deg) of obstructions by azimuth (deg, N=0, E=90).
+
+    Interpolated linearly and circularly in azimuth (the profile wraps from
+    the last point back to the first through 360 deg).
+    """
+
+    az_deg: tuple[float, ...]
+    alt_deg: tuple[float, ...]
+    source: str = ""
+
+    def __post_init__(self):
+        if len(self.az_deg) != len(self.alt_deg) or len(self.az_deg) == 0:
+            raise InputError("horizon profile needs at least one (azimuth, altitude) point")
+        for a, h in zip(self.az_deg, self.alt_deg):
+            if not (math.isfinite(a) and math.isfinite(h)) or not (-90.0 <= h <= 90.0):
+                raise InputError(f"horizon point ({a}, {h}) is invalid; altitude must be -90 to 90 deg")
+
+    @classmethod
+    def from_points(cls, points, source: str = "") -> "Horizon":
+        """Build from ``[(az_deg, alt_deg), ...]``; azimuths are taken modulo 360 and sorted."""
+        pts = sorted(((float(a) % 360.0, float(h)) for a, h in points), key=lambda p: p[0])
+        if not pts:
+            raise InputError("horizon profile needs at least one (azimuth, altitude) point")
+        return cls(tuple(p[0] for p in pts), tuple(p[1] for p in pts), source)
+
+    @classmethod
+    def read(cls, path) -> "Horizon":
+        """Read a two-column text file: ``azimuth altitude`` per line, degrees.
+
+        ``#`` starts a comment; blank lines are ignored; columns are split on
+        white space or a comma.  A bad line raises InputError naming the file
+        and line number.
+        """
+        p = Path(path)
+        try:
+            text = p.read_text(encoding="utf-8")
+        except OSError as exc:
+            raise InputError(f"cannot read horizon file {str(p)!r}: {exc.strerror or exc}") from None
+        except UnicodeDecodeError:
+            raise InputError(f"horizon file {str(p)!r} is not UTF-8 text") from None
+        points = []
+        for no, raw in enumerate(text.splitlines(), start=1):
+            line = raw.split("#", 1)[0].replace(",", " ").strip()
+            if not line:
+                continue
+            parts = line.split()
+            if len(parts) != 2:
+                raise InputError(f"{p.name} line {no}: expected two numbers 'azimuth altitude', got {raw.strip()!r}")
+            try:
+                az, alt = float(parts[0]), float(parts[1])
+            except ValueError:
+                raise InputError(f"{p.name} line {no}: expected two numbers 'azimuth altitude', got {raw.strip()!r}") from None
+            if not (math.isfinite(az) and -360.0 <= az <= 720.0):
+                raise InputError(f"{p.name} line {no}: azimuth {parts[0]} must be 0 to 360 deg")
+            if not (math.isfinite(alt) and -10.0 <= alt <= 90.0):
+                raise InputError(f"{p.name} line {no}: altitude {parts[1]} must be -10 to 90 deg")
+            points.append((az, alt))
+        if not points:
+            raise InputError(f"horizon file {p.name} has no 'azimuth altitude' lines")
+        return cls.from_points(points, source=str(p))
+
+    def alt_at(self, az_deg):
+        """Obstruction altitude (deg) at azimuth(s) ``az_deg``, circular linear interpolation."""
+        import numpy as np
+
+        az = np.asarray(self.az_deg, dtype=float)
+        alt = np.asarray(self.alt_deg, dtype=float)
+        if az.size == 1:
+            return np.full(np.shape(az_deg), alt[0])
+        return np.interp(np.mod(np.asarray(az_deg, dtype=float), 360.0), az, alt, period=360.0)
+
+    @property
+    def max_alt_deg(self) -> float:
+        return max(self.alt_deg)
+
+
+@dataclass(frozen=True)
+class Site:
+    """An observing site.  See the module docstring for conventions."""
+
+    lat_deg: float
+    lon_deg: float
+    elevation_m: float = 0.0
+    tz: str = "UTC"
+    min_alt_deg: float = 20.0
+    horizon: Horizon | None = None
+    pressure_hpa: float | None = None
+    temperature_c: float = 10.0
+    name: str = ""
+    #: Zenith brightness of the moonless, dark sky at the site (V mag/arcsec^2).
+    #: 21.0 is a typical rural amateur site (common practice, no source);
+    #: measure it with a sky-quality meter and set it.
+    sky_mag_zenith: float = 21.0
+    #: V-band extinction coefficient (mag/airmass): 0.2 "good" (Schaefer 1985,
+    #: quoted by Green 1992, ICQ 14, 55).
+    extinction_k: float = 0.2
+    _zone: object = field(default=None, repr=False, compare=False)
+
+    def __post_init__(self):
+        set_ = object.__setattr__
+        set_(self, "lat_deg", _num("latitude", self.lat_deg, -90.0, 90.0, "deg (north positive)"))
+        lon = _num("longitude", self.lon_deg, -180.0, 360.0, "deg east (or 0 to 360)")
+        if lon > 180.0:
+            lon -= 360.0
+        set_(self, "lon_deg", lon)
+        set_(self, "elevation_m", _num("elevation", self.elevation_m, -500.0, 9000.0, "m"))
+        set_(self, "min_alt_deg", _num("minimum altitude", self.min_alt_deg, 0.0, 80.0, "deg"))
+        set_(self, "temperature_c", _num("temperature", self.temperature_c, -60.0, 50.0, "degC"))
+        set_(self, "sky_mag_zenith", _num("zenith sky brightness", self.sky_mag_zenith, 14.0, 23.0, "mag/arcsec^2"))
+        set_(self, "extinction_k", _num("extinction coefficient", self.extinction_k, 0.0, 2.0, "mag/airmass"))
+        if self.pressure_hpa is None:
+            from planner.sky.atmosphere import pressure_from_elevation_hpa
+
+            set_(self, "pressure_hpa", float(pressure_from_elevation_hpa(self.elevation_m)))
+        else:
+            set_(self, "pressure_hpa", _num("pressure", self.pressure_hpa, 0.0, 1100.0, "hPa"))
+        if self.horizon is not None and not isinstance(self.horizon, Horizon):
+            if isinstance(self.horizon, (str, Path)):
+                set_(self, "horizon", Horizon.read(self.horizon))
+            else:
+                set_(self, "horizon", Horizon.from_points(self.horizon))
+        set_(self, "_zone", _zone_for(self.tz))
+        set_(self, "name", str(self.name))
+
+    @property
+    def zone(self):
+        """The :class:`zoneinfo.ZoneInfo` of ``tz``."""
+        return self._zone
+
+    def limit_alt_deg(self, az_deg):
+        """Lowest usable apparent altitude at azimuth(s): max(min_alt, horizon profile)."""
+        import numpy as np
+
+        if self.horizon is None:
+            return np.full(np.shape(az_deg), self.min_alt_deg)
+        return np.maximum(self.min_alt_deg, self.horizon.alt_at(az_deg))
+
+    def local_time(self, when_utc):
+        """UTC instant(s) (datetime64, ISO text or pandas) as aware local times (pandas).
+
+        Daylight saving follows the IANA zone.  Returns a ``pandas.Timestamp``
+        for a scalar and a ``DatetimeIndex`` for arrays; NaT stays NaT.
+        """
+        import pandas as pd
+
+        if pd.api.types.is_scalar(when_utc) or isinstance(when_utc, str):
+            ts = pd.Timestamp(when_utc)
+            if ts is pd.NaT:
+                return ts
+            return (ts.tz_localize("UTC") if ts.tzinfo is None else ts).tz_convert(self.tz)
+        idx = pd.DatetimeIndex(when_utc)
+        idx = idx.tz_localize("UTC") if idx.tz is None else idx
+        return idx.tz_convert(self.tz)
+
+    def format_local(self, when_utc, fmt: str = "%Y-%m-%d %H:%M %Z") -> str:
+        """One UTC instant as local clock text, e.g. ``2026-03-29 03:10 CEST`` ('-' for NaT)."""
+        ts = self.local_time(when_utc)
+        import pandas as pd
+
+        if ts is pd.NaT:
+            return "-"
+        return ts.strftime(fmt)
+
+
+def _zone_for(name):
+    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+    if not isinstance(name, str) or not name.strip():
+        raise InputError(f"time zone {name!r} is not valid; give an IANA name such as 'Europe/Paris' or 'UTC'")
+    try:
+        return ZoneInfo(name.strip())
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        raise InputError(
+            f"time zone {name!r} is unknown; give an IANA name such as 'Europe/Paris', "
+            "'America/New_York' or 'UTC' (on Windows install the 'tzdata' package)"
+        ) from None

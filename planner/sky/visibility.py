@@ -1,0 +1,323 @@
+"""When each target is well placed tonight: analytic visibility for a whole catalogue at once.
+
+Method (see docs/sky.md for the derivation and accuracy):
+
+1. **Apparent place once per night.**  One ERFA context (``erfa.apco13``) at
+   the middle of the dark window; one vectorised ``erfa.atciq`` call turns
+   every ICRS J2000 position into its CIRS place (light deflection, annual
+   aberration, precession-nutation).  Over a night these change by well
+   under an arcsecond.
+2. **Hour angle is linear in time.**  H(t) = ERA(t) + longitude - RA_cirs,
+   with the Earth rotation angle advancing at 2 pi x 1.00273781191135448 rad
+   per UT1 day (IERS Conventions 2010).  Polar motion (< 0.5") and diurnal
+   aberration (< 0.33") are left out of this fast path; :func:`alt_az_at`
+   includes them.
+3. **Rising and setting through the minimum altitude** from
+   cos H0 = (sin h0 - sin phi sin dec) / (cos phi cos dec), where h0 is the
+   TRUE altitude whose refracted altitude is the site's minimum (Bennett
+   1982 refraction).  The up-intervals around the transits k = -1, 0, +1
+   sidereal days from the one nearest the window's middle are intersected
+   with the dark window: exact for windows up to a day.
+4. **Best time** = highest point inside the window: the transit if one falls
+   inside, otherwise the window edge with the smaller |hour angle|
+   (altitude falls monotonically with |H|).
+5. **Horizon profile** (if the site has one), which depends on azimuth:
+   rising and setting are found by a fixed 4-step iteration
+   (limit = max(min_alt, profile(azimuth at the crossing)), recompute H0),
+   separately for the eastern and western crossing; the time above the limit
+   inside the window is then measured with a midpoint rule on
+   ``horizon_samples`` (default 24) instants across the window, only for the
+   targets that get above the minimum altitude at all, in chunks (bounded
+   memory).  If the analytic best instant is hidden by the profile, the
+   highest clear sample is taken instead.
+
+No per-target Python loop and no dense time grid over the catalogue.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from planner.errors import InputError
+from planner.sky import atmosphere as atm
+from planner.sky._astrometry import OMEGA_RAD_S, altaz_rad, astrom_at, to_utc64, validate_radec
+from planner.sky.night import Night, _sep_deg, sun_alt_deg
+from planner.sky.site import Site
+
+__all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place"]
+
+#: Output columns, in order (DEVELOPERS.md contract).
+VISIBILITY_COLUMNS = (
+    "transit_utc", "rise_utc", "set_utc", "up_dark_min", "best_utc", "alt_best_deg",
+    "az_best_deg", "airmass_best", "refraction_arcmin", "dispersion_arcsec", "moon_sep_deg",
+    "sky_mag_arcsec2", "observable",
+)
+
+TWO_PI = 2.0 * np.pi
+SIDEREAL_DAY_S = TWO_PI / OMEGA_RAD_S
+_CHUNK = 20_000
+
+
+def _wrap_pi(x):
+    """Angle to (-pi, pi]."""
+    return np.pi - np.mod(np.pi - x, TWO_PI)
+
+
+def apparent_place(ra_deg, dec_deg, site: Site, when_utc):
+    """CIRS right ascension/declination (rad) of ICRS targets at one instant, plus the ERFA context.
+
+    Returns ``(ri, di, astrom)``; ``astrom["eral"]`` is the local Earth
+    rotation angle (ERA + longitude, rad) and ``astrom["sphi"]``,
+    ``astrom["cphi"]`` the sine and cosine of the site latitude.
+    """
+    import erfa
+
+    ast = astrom_at(np.asarray(when_utc, dtype="datetime64[ns]"), site.lat_deg, site.lon_deg, site.elevation_m)
+    ri, di = erfa.atciq(np.radians(ra_deg), np.radians(dec_deg), 0.0, 0.0, 0.0, 0.0, ast)
+    return ri, di, ast
+
+
+def alt_az_at(ra_deg, dec_deg, site: Site, when_utc, refracted: bool = False):
+    """Altitude and azimuth (deg, azimuth N=0 E=90) of ICRS J2000 targets at UTC instants, broadcast.
+
+    Full ERFA path (as astropy ``AltAz``): aberration, light deflection,
+    precession-nutation, Earth rotation from UT1, polar motion, diurnal
+    aberration.  ``refracted=True`` adds Saemundsson (1986) refraction for the
+    site's pressure and temperature.  For the scheduler: evaluate any slot
+    times, e.g. ``alt_az_at(ra[:, None], dec[:, None], site, slots[None, :])``.
+    """
+    ra, dec = validate_radec(ra_deg, dec_deg)
+    t64 = to_utc64(when_utc)
+    alt, az = altaz_rad(ra, dec, site.lat_deg, site.lon_deg, t64, site.elevation_m)
+    alt_deg, az_deg = np.degrees(alt), np.degrees(az)
+    if refracted:
+        alt_deg = atm.apparent_from_true_deg(alt_deg, site.pressure_hpa, site.temperature_c)
+    return alt_deg, az_deg
+
+
+def _alt_az_fast(sd, cd, sphi, cphi, ha):
+    """True altitude and azimuth (rad) from hour angle (spherical triangle), vectorised."""
+    ch = np.cos(ha)
+    salt = np.clip(sphi * sd + cphi * cd * ch, -1.0, 1.0)
+    alt = np.arcsin(salt)
+    az = np.mod(np.arctan2(-cd * np.sin(ha), sd * cphi - cd * ch * sphi), TWO_PI)
+    return alt, az
+
+
+def _h0(sd, cd, sphi, cphi, h0_true_rad):
+    """Semi-diurnal arc above true altitude h0 (rad): 0 never up, pi always up."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        c = (np.sin(h0_true_rad) - sphi * sd) / (cphi * cd)
+    c = np.where(np.isfinite(c), c, np.where(sphi * sd > np.sin(h0_true_rad), -2.0, 2.0))
+    return np.arccos(np.clip(c, -1.0, 1.0))
+
+
+def _to_t64(t_mid64, sec):
+    """t_mid + seconds (float array, NaN -> NaT) as datetime64[ns]."""
+    sec = np.asarray(sec, dtype=float)
+    ok = np.isfinite(sec)
+    ns = np.where(ok, np.round(np.where(ok, sec, 0.0) * 1e9), 0).astype(np.int64)
+    out = t_mid64 + ns.astype("timedelta64[ns]")
+    return np.where(ok, out, np.datetime64("NaT", "ns"))
+
+
+def visibility(ra_deg, dec_deg, site: Site, night: Night, *, airmass_model: str = "pickering2002",
+               band_nm=atm.VISUAL_BAND_NM, horizon_samples: int = 24, index=None):
+    """Visibility of every target in the night's dark window, one row per target (pandas DataFrame).
+
+    ``ra_deg``, ``dec_deg``: ICRS J2000 positions (arrays or pandas Series;
+    a Series' index is kept unless ``index`` is given).  Columns
+    (:data:`VISIBILITY_COLUMNS`):
+
+    * ``transit_utc`` upper transit nearest the middle of the dark window;
+    * ``rise_utc``, ``set_utc`` crossings of the minimum altitude (and horizon
+      profile) before/after that transit; NaT when the target never gets
+      that high or never goes that low;
+    * ``up_dark_min`` minutes above the limit inside the dark window;
+    * ``best_utc`` highest point inside the window; at that instant
+      ``alt_best_deg`` (APPARENT, refracted), ``az_best_deg`` (N=0, E=90),
+      ``airmass_best`` (``airmass_model``), ``refraction_arcmin``
+      (Saemundsson 1986 at the site's P, T), ``dispersion_arcsec``
+      (Filippenko 1982 across ``band_nm``), ``moon_sep_deg``,
+      ``sky_mag_arcsec2`` (dark sky + twilight + moonlight, V);
+    * ``observable`` True when the target is above the limit at some time
+      inside the dark window.
+
+    Without a dark window (polar summer) ``best_*`` are NaN/NaT and
+    ``observable`` is False; transit/rise/set refer to the middle of the
+    noon-to-noon interval.
+    """
+    import pandas as pd
+
+    if not isinstance(site, Site):
+        raise InputError(f"site must be a planner.sky.Site, got {type(site).__name__}")
+    if not isinstance(night, Night):
+        raise InputError(f"night must come from planner.sky.night_for, got {type(night).__name__}")
+    if airmass_model not in atm.AIRMASS_MODELS:
+        raise InputError(f"unknown airmass model {airmass_model!r}; choose one of: {', '.join(atm.AIRMASS_MODELS)}")
+    if index is None and isinstance(ra_deg, pd.Series):
+        index = ra_deg.index
+    ra, dec = validate_radec(np.asarray(ra_deg, dtype=float).ravel(), np.asarray(dec_deg, dtype=float).ravel())
+    if ra.shape != dec.shape:
+        raise InputError(f"ra_deg and dec_deg differ in length ({ra.size} and {dec.size})")
+    n = ra.size
+    t_mid = night.middle_utc
+    has_dark = night.has_dark
+    if has_dark:
+        a = (night.dark_start_utc - t_mid) / np.timedelta64(1, "s")
+        b = (night.dark_end_utc - t_mid) / np.timedelta64(1, "s")
+    else:
+        a = b = 0.0
+
+    # 1. apparent place at the middle of the window (one erfa call)
+    ri, di, ast = apparent_place(ra, dec, site, t_mid)
+    sphi, cphi, eral = float(ast["sphi"]), float(ast["cphi"]), float(ast["eral"])
+    sd, cd = np.sin(di), np.cos(di)
+    ha_mid = _wrap_pi(eral - ri)
+    tau0 = -ha_mid / OMEGA_RAD_S  # transit nearest the middle, s from t_mid
+
+    # 2. rising/setting through the minimum altitude
+    P, T = site.pressure_hpa, site.temperature_c
+    h0_true = np.radians(atm.true_from_apparent_deg(site.min_alt_deg, P, T))
+    H0 = _h0(sd, cd, sphi, cphi, h0_true)
+    H_rise = H_set = H0
+    if site.horizon is not None:
+        H_rise = _h0_profile(sd, cd, sphi, cphi, site, H0, rising=True)
+        H_set = _h0_profile(sd, cd, sphi, cphi, site, H0, rising=False)
+    never = H_rise + H_set <= 0.0
+    always = (H_rise >= np.pi) & (H_set >= np.pi)
+    crosses = ~never & ~always
+    rise_s = np.where(crosses, tau0 - H_rise / OMEGA_RAD_S, np.nan)
+    set_s = np.where(crosses, tau0 + H_set / OMEGA_RAD_S, np.nan)
+
+    # 3. time above the limit inside the dark window (analytic intersection)
+    up = np.zeros(n)
+    if has_dark:
+        for k in (-1, 0, 1):  # three shifted copies, each vectorised over all targets
+            lo = tau0 + k * SIDEREAL_DAY_S - H_rise / OMEGA_RAD_S
+            hi = tau0 + k * SIDEREAL_DAY_S + H_set / OMEGA_RAD_S
+            up += np.maximum(0.0, np.minimum(b, hi) - np.maximum(a, lo))
+        up = np.minimum(up, b - a)
+
+    # 4. best time: highest point inside the window
+    if has_dark:
+        best_s = np.full(n, np.nan)
+        for k in (1, -1, 0):  # k = 0 last so it wins when several transits fall inside
+            tk = tau0 + k * SIDEREAL_DAY_S
+            best_s = np.where((tk >= a) & (tk <= b), tk, best_s)
+        ha_a = np.abs(_wrap_pi(ha_mid + OMEGA_RAD_S * a))
+        ha_b = np.abs(_wrap_pi(ha_mid + OMEGA_RAD_S * b))
+        best_s = np.where(np.isnan(best_s), np.where(ha_a < ha_b, a, b), best_s)
+        alt_t, az_t = _alt_az_fast(sd, cd, sphi, cphi, ha_mid + OMEGA_RAD_S * best_s)
+        observable = up > 0.0
+        if site.horizon is not None:
+            up, observable, best_s, alt_t, az_t = _profile_sampling(
+                sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, horizon_samples)
+    else:
+        best_s = np.full(n, np.nan)
+        alt_t = az_t = np.full(n, np.nan)
+        observable = np.zeros(n, dtype=bool)
+
+    alt_true_deg = np.degrees(alt_t)
+    # refraction only above the horizon (the formulas mean nothing below it)
+    refr = np.where(alt_true_deg >= -1.0, atm.refraction_saemundsson1986(alt_true_deg, P, T), np.nan)
+    alt_app = alt_true_deg + np.nan_to_num(refr) / 60.0
+    am = atm.airmass(alt_app, airmass_model)
+    disp = atm.dispersion_arcsec(alt_app, band_nm, P, T)
+
+    best64 = _to_t64(t_mid, best_s)
+    when_moon = np.where(np.isnat(best64), t_mid, best64)
+    moon = night.moon_at(when_moon)
+    moon_sep = _sep_deg(ra, dec, moon["ra_deg"], moon["dec_deg"])
+    sky = _sky_mag(site, night, best64, alt_true_deg, moon, moon_sep)
+
+    df = pd.DataFrame({
+        "transit_utc": _to_t64(t_mid, tau0),
+        "rise_utc": _to_t64(t_mid, rise_s),
+        "set_utc": _to_t64(t_mid, set_s),
+        "up_dark_min": up / 60.0,
+        "best_utc": best64,
+        "alt_best_deg": alt_app,
+        "az_best_deg": np.degrees(az_t),
+        "airmass_best": am,
+        "refraction_arcmin": refr,
+        "dispersion_arcsec": disp,
+        "moon_sep_deg": moon_sep,
+        "sky_mag_arcsec2": sky,
+        "observable": np.asarray(observable, dtype=bool),
+    }, index=index)
+    return df
+
+
+def _az_at_alt(sd, cd, sphi, cphi, H):
+    """Azimuth (deg) at hour angle H (rad) -- the crossing point's azimuth."""
+    _alt, az = _alt_az_fast(sd, cd, sphi, cphi, H)
+    return np.degrees(az)
+
+
+def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, iterations: int = 4):
+    """Semi-arc to the crossing of max(min_alt, horizon profile), by fixed-point iteration."""
+    P, T = site.pressure_hpa, site.temperature_c
+    H = H0
+    for _ in range(iterations):
+        Hs = -H if rising else H
+        lim = site.limit_alt_deg(_az_at_alt(sd, cd, sphi, cphi, Hs))
+        H = _h0(sd, cd, sphi, cphi, np.radians(atm.true_from_apparent_deg(lim, P, T)))
+    return H
+
+
+def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, m):
+    """Time above max(min_alt, profile) by a midpoint rule on ``m`` instants (candidates only)."""
+    P, T = site.pressure_hpa, site.temperature_c
+    up = up.copy()
+    best_s, alt_t, az_t = best_s.copy(), alt_t.copy(), az_t.copy()
+    observable = np.zeros(up.shape, dtype=bool)
+    # targets above min_alt at some time: only these can clear the profile
+    cand = np.flatnonzero(up > 0.0)
+    ts = a + (np.arange(m) + 0.5) * (b - a) / m
+    for s in range(0, cand.size, _CHUNK):
+        idx = cand[s:s + _CHUNK]
+        ha = ha_mid[idx, None] + OMEGA_RAD_S * ts[None, :]
+        alt, az = _alt_az_fast(sd[idx, None], cd[idx, None], sphi, cphi, ha)
+        lim_true = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az)), P, T)
+        clear = np.degrees(alt) >= lim_true
+        up[idx] = clear.mean(axis=1) * (b - a)
+        observable[idx] = clear.any(axis=1)
+        # analytic best hidden by the profile -> highest clear sample
+        lim_best = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az_t[idx])), P, T)
+        hidden = (np.degrees(alt_t[idx]) < lim_best) & clear.any(axis=1)
+        if hidden.any():
+            alt_c = np.where(clear, alt, -np.inf)
+            j = np.argmax(alt_c, axis=1)
+            rows = np.flatnonzero(hidden)
+            sel = idx[rows]
+            best_s[sel] = ts[j[rows]]
+            alt_t[sel] = alt[rows, j[rows]]
+            az_t[sel] = az[rows, j[rows]]
+    return up, observable, best_s, alt_t, az_t
+
+
+def _sky_mag(site: Site, night: Night, best64, alt_true_deg, moon, moon_sep):
+    """V sky brightness (mag/arcsec^2) at each target at its best time.
+
+    dark sky: zenith value brightened toward the horizon as in Krisciunas &
+    Schaefer (1991) eq. 2, B = B_zen X 10^(-0.4 k (X - 1)); twilight: the
+    approximate zenith model :func:`planner.sky.atmosphere.twilight_sky_mag`
+    at the Sun's altitude (interpolated from 25 samples over the window);
+    moonlight: Krisciunas & Schaefer (1991).
+    """
+    k = site.extinction_k
+    z = 90.0 - np.clip(alt_true_deg, 0.0, 90.0)
+    X = atm._ks_airmass(z)
+    b_dark = atm.nl_from_mag(site.sky_mag_zenith) * X * 10.0 ** (-0.4 * k * (X - 1.0))
+    b_moon = atm.moon_sky_nl(moon_sep, moon["alt_deg"], alt_true_deg, moon["phase_angle_deg"], k)
+    if night.has_dark:
+        grid = night.dark_start_utc + ((night.dark_end_utc - night.dark_start_utc) // 24) * np.arange(25)
+        sun = sun_alt_deg(site, grid)
+        t = np.where(np.isnat(best64), night.middle_utc, best64).astype(np.int64).astype(float)
+        sun_best = np.interp(t, grid.astype(np.int64).astype(float), sun)
+        b_tw = atm.nl_from_mag(atm.twilight_sky_mag(sun_best))
+    else:
+        b_tw = 0.0
+    out = atm.mag_from_nl(b_dark + b_moon + b_tw)
+    return np.where(alt_true_deg >= 0.0, out, np.nan)
