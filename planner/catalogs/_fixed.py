@@ -89,53 +89,59 @@ def is_letter(a: np.ndarray) -> np.ndarray:
     return ((a >= 65) & (a <= 90)) | ((a >= 97) & (a <= 122))
 
 
+_POW10 = 10.0 ** np.arange(0, 40)
+
+
 def parse_number(block: np.ndarray, dot_is_missing: bool = True):
     """Parse a fixed-width numeric field for every row at once.
 
     Returns ``(values, missing, bad)``: ``values`` float64 (NaN where missing
     or bad); ``missing`` True where the field is blank (or a lone '.', when
-    ``dot_is_missing``); ``bad`` True where the text is not a number.
+    ``dot_is_missing``); ``bad`` True where the text is not an optionally
+    signed decimal number (inner blanks, letters, two points, a sign after
+    a digit, more than 18 digits).
+
+    The loop runs over the few columns of the field, each step on whole
+    column vectors, so the cost is a handful of array operations per column.
     """
     block = np.asarray(block, dtype=np.uint8)
     n, w = block.shape
-    if w == 0:
-        z = np.zeros(n, bool)
-        return np.full(n, np.nan), ~z, z
-    sp = block == SPACE
-    dig = is_digit(block)
-    dot = block == DOT
-    sign = (block == PLUS) | (block == MINUS)
-    nonsp = ~sp
-    cnt = nonsp.sum(axis=1)
-    blank = cnt == 0
-    idx = np.arange(w)
-    first = np.where(nonsp, idx, w).min(axis=1)
-    last = np.where(nonsp, idx, -1).max(axis=1)
-    contiguous = (last - first + 1) == cnt
-    allowed = (dig | dot | sign | sp).all(axis=1)
-    n_dot = dot.sum(axis=1)
-    n_sign = sign.sum(axis=1)
-    n_dig = dig.sum(axis=1)
-    sign_first = ~sign.any(axis=1) | (sign & (idx == first[:, None])).any(axis=1)
-    lone_dot = (cnt == 1) & (n_dot == 1)
-    missing = blank | (lone_dot if dot_is_missing else np.zeros(n, bool))
-    ok = allowed & contiguous & (n_dot <= 1) & (n_sign <= 1) & sign_first & (n_dig >= 1)
-    bad = ~missing & ~ok
-    # integer of all digits, then divide by 10**(digits after the point)
-    dotpos = np.where(n_dot == 1, np.argmax(dot, axis=1), last + 1)
-    # rank of each digit counted from the right among the digits
-    digr = np.cumsum(dig[:, ::-1], axis=1)[:, ::-1] - 1  # 0 for the last digit
-    n_frac = (dig & (idx > dotpos[:, None])).sum(axis=1)
-    too_long = n_dig > 18
-    ok &= ~too_long
-    bad |= too_long & ~missing
-    pw = np.where(dig & ok[:, None], digr, 0).astype(np.int64)
-    pow10 = 10 ** np.minimum(pw, 18)
-    vals = np.where(dig & ok[:, None], (block.astype(np.int64) - ZERO) * pow10, 0).sum(axis=1)
-    neg = (block == MINUS).any(axis=1)
-    out = vals.astype(np.float64) / (10.0 ** n_frac)
+    mant = np.zeros(n, np.int64)
+    nfrac = np.zeros(n, np.int64)
+    ndig = np.zeros(n, np.int64)
+    runs = np.zeros(n, np.int64)
+    cnt = np.zeros(n, np.int64)
+    seen_dot = np.zeros(n, bool)
+    neg = np.zeros(n, bool)
+    bad = np.zeros(n, bool)
+    prev_ns = np.zeros(n, bool)
+    for j in range(w):
+        c = block[:, j]
+        d = c - np.uint8(ZERO)  # wraps round for bytes below '0'
+        isd = d < 10
+        ns = c != SPACE
+        isdot = c == DOT
+        isminus = c == MINUS
+        issign = isminus | (c == PLUS)
+        bad |= ns & ~(isd | isdot | issign)
+        bad |= issign & prev_ns
+        bad |= isdot & seen_dot
+        runs += ns & ~prev_ns
+        cnt += ns
+        neg |= isminus
+        seen_dot |= isdot
+        mant = np.where(isd, mant * 10 + d, mant)
+        nfrac += isd & seen_dot
+        ndig += isd
+        prev_ns = ns
+    blank = runs == 0
+    lone_dot = (cnt == 1) & seen_dot
+    missing = blank | lone_dot if dot_is_missing else blank
+    bad |= (runs > 1) | (ndig == 0) | (ndig > 18)
+    bad &= ~missing
+    out = mant / _POW10[np.minimum(nfrac, 39)]
     out = np.where(neg, -out, out)
-    out[~ok] = np.nan
+    out[bad | missing] = np.nan
     return out, missing, bad
 
 
@@ -160,17 +166,24 @@ def to_text(block: np.ndarray, split_code_number: bool = False,
         new[k[None, :] == p[:, None]] = SPACE
         block = new
         w += 1
+    block = block.copy()
     sp = block == SPACE
-    prev_sp = np.ones_like(sp)
-    prev_sp[:, 1:] = sp[:, :-1]
     trailing = np.flip(np.logical_and.accumulate(np.flip(sp, 1), axis=1), 1)
-    drop = sp if no_blanks else sp & (prev_sp | trailing)
-    if not drop.any():
-        return np.ascontiguousarray(block).view(f"S{w}").ravel().astype(f"U{w}")
-    order = np.argsort(drop, axis=1, kind="stable")
-    out = np.take_along_axis(block, order, axis=1)
-    out[np.take_along_axis(drop, order, axis=1)] = 0
-    return np.ascontiguousarray(out).view(f"S{w}").ravel().astype(f"U{w}")
+    block[trailing] = 0
+    if no_blanks:
+        inner = sp & ~trailing
+    else:
+        prev_sp = np.ones_like(sp)
+        prev_sp[:, 1:] = sp[:, :-1]
+        inner = sp & prev_sp & ~trailing  # leading blanks and repeated blanks
+    rows = np.flatnonzero(inner.any(axis=1))
+    if len(rows):
+        sub, drop = block[rows], inner[rows]
+        order = np.argsort(drop, axis=1, kind="stable")
+        sub = np.take_along_axis(sub, order, axis=1)
+        sub[np.take_along_axis(drop, order, axis=1)] = 0
+        block[rows] = sub
+    return np.ascontiguousarray(block).view(f"S{w}").ravel().astype(f"U{w}")
 
 
 def flag_chars(block: np.ndarray, keep) -> np.ndarray:
