@@ -54,17 +54,26 @@ def make_site(d: dict, name: str = ""):
 
 
 def make_night(site, local_date, darkness: str):
-    from planner.sky import night_for
+    from planner.sky.night import night_for
 
-    return night_for(site, local_date, **_kwargs_for(night_for, {"darkness": darkness}))
+    return night_for(site, local_date, darkness=darkness)
 
 
 def altaz(ra_deg, dec_deg, site, when_utc):
-    """Geometric altitude and azimuth (deg) of J2000 positions at UTC instant(s)."""
-    from planner.sky import altaz as _altaz
+    """Geometric (unrefracted) altitude and azimuth (deg) of J2000 positions at UTC instant(s), broadcast."""
+    from planner.sky.visibility import alt_az_at
 
-    return _altaz(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site.lat_deg, site.lon_deg,
-                  np.asarray(when_utc, "datetime64[ns]"))
+    return alt_az_at(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site,
+                     np.asarray(when_utc, "datetime64[ns]"))
+
+
+def sun_alt_sep(site, when_utc, ra_deg, dec_deg):
+    """Sun altitude (deg) at the site and its distance (deg) from each target at the same instants."""
+    from planner.sky.night import sun_alt_deg, sun_sep_deg
+
+    when = np.asarray(when_utc, "datetime64[ns]")
+    return (np.asarray(sun_alt_deg(site, when), float),
+            np.asarray(sun_sep_deg(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, when), float))
 
 
 def airmass(alt_deg):
@@ -74,7 +83,7 @@ def airmass(alt_deg):
 
 
 def visibility(ra_deg, dec_deg, site, night):
-    from planner.sky import visibility as _vis
+    from planner.sky.visibility import visibility as _vis
 
     return _vis(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, night)
 

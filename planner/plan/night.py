@@ -99,9 +99,14 @@ def night_summary(night, site) -> dict:
                 "status", "note", "local_date", "sun_alt_limit_deg"):
         if hasattr(night, key):
             d[key] = getattr(night, key)
-    for key in ("moon_fraction", "moon_illuminated_fraction", "moon_phase_fraction"):
-        if hasattr(night, key) and "moon_illumination" not in d:
-            d["moon_illumination"] = getattr(night, key)
+    illum = getattr(night, "moon_illum", None)
+    if illum is not None and np.size(illum):
+        d["moon_illumination"] = float(np.nanmax(illum))
+        up = np.asarray(getattr(night, "moon_alt_deg", []), float) > 0
+        d["moon_up"] = "none" if not up.any() else ("all" if up.all() else "part")
+    if getattr(night, "has_dark", True) is False:
+        d["dark_start_utc"] = None
+        d["dark_end_utc"] = None
     d["tz"] = site.tz
     return d
 
@@ -307,25 +312,11 @@ def _finish_rows(tel, scope_name, rows, sched, site, seeing, section) -> pd.Data
 
 
 def sun_position(site, when_utc, ra_deg, dec_deg):
-    """Sun altitude at the site and its angular distance from each target (deg).
-
-    astropy's built-in solar ephemeris (``get_sun``), a handful of instants.
-    """
-    from astropy import units as u
-    from astropy.coordinates import AltAz, EarthLocation, SkyCoord, get_sun
-    from astropy.time import Time
-
+    """Sun altitude at the site and its angular distance from each target (deg), via the sky engine."""
     when = np.asarray(when_utc, "datetime64[ns]")
     if when.size == 0:
         return np.array([]), np.array([])
-    t = Time(when, scale="utc")
-    loc = EarthLocation(lat=site.lat_deg * u.deg, lon=site.lon_deg * u.deg, height=site.elevation_m * u.m)
-    sun = get_sun(t)
-    alt = sun.transform_to(AltAz(obstime=t, location=loc)).alt.deg
-    tgt = SkyCoord(ra=np.asarray(ra_deg, float) * u.deg, dec=np.asarray(dec_deg, float) * u.deg)
-    sun_icrs = SkyCoord(ra=sun.ra, dec=sun.dec)
-    sep = tgt.separation(sun_icrs).deg
-    return np.asarray(alt, float), np.asarray(sep, float)
+    return bridge.sun_alt_sep(site, when, ra_deg, dec_deg)
 
 
 # -- the whole plan ----------------------------------------------------------------
@@ -353,8 +344,12 @@ def prepare(request: NightRequest, catalog=None):
         mid = np.datetime64(pd.Timestamp(ninfo["dark_start_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_start_utc"]).tzinfo else ninfo["dark_start_utc"], "ns")
     else:
         mid = np.datetime64(f"{local_date}T23:59:00", "ns")
-    epoch = decimal_year(mid)
-    geo = bridge.geometry(cat, epoch)
+    if hasattr(night, "middle_utc"):
+        mid = np.datetime64(night.middle_utc, "ns")
+    from planner.motion.epochs import to_epoch_yr
+
+    epoch = float(to_epoch_yr(mid))
+    geo = bridge.geometry(cat, mid)
     keep_cols = [c for c in ("wds_id", "discoverer", "components", "ra_deg", "dec_deg", "mag1", "mag2",
                              "has_orbit", "note_flags") if c in pairs.columns]
     geo = geo.drop(columns=[c for c in geo.columns if c in keep_cols])

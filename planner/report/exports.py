@@ -1,0 +1,217 @@
+"""Table exports of a night plan: terminal text, CSV, JSON, VOTable; HTML and PDF delegate.
+
+Machine formats carry UTC times (ISO 8601, ``Z``); the text and HTML views
+show the site's local clock.  Every file is written atomically.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+import pandas as pd
+
+from planner.config.storage import atomic_write_bytes, atomic_write_text
+from planner.report.safe import csv_cell
+
+#: the fields every JSON object carries (the stable contract) -- all of them
+#: are columns of the schedule table.
+CONTRACT_FIELDS = ("wds_id", "discoverer", "components", "slot_start_utc", "slot_end_utc",
+                   "ra_deg", "dec_deg", "rho_arcsec", "theta_deg", "mag1", "mag2",
+                   "alt_deg", "airmass", "limit_arcsec", "margin", "chance")
+
+_TIME_COLS = ("slot_start_utc", "slot_end_utc", "best_utc")
+
+
+def iso_utc(t) -> str | None:
+    if t is None or (not isinstance(t, str) and pd.isna(t)):
+        return None
+    ts = pd.Timestamp(t)
+    if ts.tzinfo is not None:
+        ts = ts.tz_convert("UTC").tz_localize(None)
+    return ts.strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def _clean(v):
+    if isinstance(v, (np.floating, float)):
+        f = float(v)
+        return None if math.isnan(f) or math.isinf(f) else round(f, 6)
+    if isinstance(v, (np.integer,)):
+        return int(v)
+    if isinstance(v, (np.bool_,)):
+        return bool(v)
+    return v
+
+
+def records(schedule: pd.DataFrame) -> list[dict]:
+    """One JSON-ready dict per scheduled pair (contract fields first)."""
+    cols = list(CONTRACT_FIELDS) + [c for c in schedule.columns if c not in CONTRACT_FIELDS]
+    out = []
+    for row in schedule[cols].itertuples(index=False, name=None):
+        d = {}
+        for c, v in zip(cols, row):
+            d[c] = iso_utc(v) if c in _TIME_COLS else _clean(v)
+        out.append(d)
+    return out
+
+
+def plan_json(plan) -> str:
+    """The ``--json`` output of ``night``: a JSON array, one object per scheduled pair."""
+    return json.dumps(records(plan.schedule), indent=1, ensure_ascii=False)
+
+
+def write_json(plan, path) -> None:
+    atomic_write_text(path, plan_json(plan) + "\n")
+
+
+def _machine_frame(schedule: pd.DataFrame) -> pd.DataFrame:
+    df = schedule.copy()
+    for c in _TIME_COLS:
+        if c in df:
+            df[c] = [iso_utc(v) for v in df[c]]
+    return df
+
+
+def write_csv(plan, path) -> None:
+    df = _machine_frame(plan.schedule)
+    for c in df.columns:
+        if df[c].dtype == object or pd.api.types.is_string_dtype(df[c]):
+            df[c] = [csv_cell(v) if isinstance(v, str) else v for v in df[c]]
+    atomic_write_text(path, df.to_csv(index=False, float_format="%.6g"))
+
+
+def write_votable(plan, path) -> None:
+    """VOTable (IVOA standard) via astropy, with units and the plan's inputs as PARAMs."""
+    import io
+
+    from astropy.io.votable import from_table
+    from astropy.table import Table
+
+    df = _machine_frame(plan.schedule)
+    units = {"ra_deg": "deg", "dec_deg": "deg", "rho_arcsec": "arcsec", "theta_deg": "deg",
+             "mag1": "mag", "mag2": "mag", "dm": "mag", "alt_deg": "deg", "az_deg": "deg",
+             "limit_arcsec": "arcsec", "sun_alt_deg": "deg"}
+    cols = {}
+    for c in df.columns:
+        s = df[c]
+        if pd.api.types.is_numeric_dtype(s) and not pd.api.types.is_bool_dtype(s):
+            cols[c] = s.to_numpy(float)
+        else:
+            cols[c] = np.array(["" if v is None or (not isinstance(v, str) and pd.isna(v)) else str(v)
+                                for v in s], dtype=str)
+    t = Table(cols)
+    for c, u in units.items():
+        if c in t.colnames:
+            t[c].unit = u
+    t.meta["description"] = "splitplan night plan"
+    vot = from_table(t)
+    res = vot.resources[0]
+    res.description = (f"splitplan {plan.version} night plan for {plan.night.get('local_date', '')}; "
+                       f"catalogue: {plan.catalog_source}")
+    buf = io.BytesIO()
+    vot.to_xml(buf)
+    atomic_write_bytes(path, buf.getvalue())
+
+
+def write_html(plan, path) -> None:
+    from planner.report.html import render_html
+
+    atomic_write_text(path, render_html(plan))
+
+
+def write_pdf(plan, path) -> None:
+    from planner.report.pdf import render_pdf
+
+    atomic_write_bytes(path, render_pdf(plan))
+
+
+def write_text(plan, path) -> None:
+    atomic_write_text(path, render_text(plan))
+
+
+# -- terminal ----------------------------------------------------------------------
+
+def _fmt(v, spec: str, dash: str = "-") -> str:
+    try:
+        f = float(v)
+    except (TypeError, ValueError):
+        return dash
+    return dash if math.isnan(f) else format(f, spec)
+
+
+def local_hm(plan, t) -> str:
+    if t is None or pd.isna(t):
+        return "-"
+    ts = pd.Timestamp(t)
+    ts = ts.tz_localize("UTC") if ts.tzinfo is None else ts
+    return ts.tz_convert(plan.night.get("tz", "UTC")).strftime("%H:%M")
+
+
+def header_lines(plan) -> list[str]:
+    r = plan.request
+    n = plan.night
+    s = r.site
+    out = [f"Night plan {n.get('local_date', r.date)}  site {r.site_name or ''} "
+           f"({s.get('lat_deg', 0):.4f}, {s.get('lon_deg', 0):.4f}, {s.get('elevation_m', 0):g} m, {s.get('tz')})".replace("  site  (", "  site ("),
+           f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} local"
+           + (f"   Moon {100 * float(n['moon_illumination']):.0f}% lit" if n.get("moon_illumination") is not None else ""),
+           f"seeing: {plan.seeing_origin}",
+           f"catalogue: {plan.catalog_source}"]
+    return out
+
+
+def table_lines(sched: pd.DataFrame) -> list[str]:
+    head = (f"{'#':>2} {'time':5} {'pair':<22} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+            f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
+    lines = [head, "-" * len(head)]
+    for r in sched.itertuples(index=False):
+        name = f"{r.discoverer} {r.components}".strip()
+        pid = f"{r.wds_id} {name}"[:22]
+        how = {"orbit": "orbit", "orbit-interferometric": "orb-if", "linear": "linear",
+               "last": "last"}.get(str(r.method), str(r.method))[:6]
+        mags = f"{_fmt(r.mag1, '.1f')}/{_fmt(r.mag2, '.1f')}"
+        power = f"{_fmt(r.power_min, '.0f')}-{_fmt(r.power_max, '.0f')}x"
+        note = str(r.reason)
+        if r.flag:
+            note = f"[{r.flag}] " + note
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {_fmt(r.rho_arcsec, '6.2f')}\" "
+                     f"{_fmt(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {_fmt(r.alt_deg, '3.0f')} "
+                     f"{_fmt(r.airmass, '4.2f')} {_fmt(r.limit_arcsec, '5.2f')} {_fmt(r.margin, '4.1f')} "
+                     f"{_fmt(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
+    return lines
+
+
+def render_text(plan) -> str:
+    out = header_lines(plan)
+    for note in plan.notes:
+        out.append(f"note: {note}")
+    for sp in plan.scopes:
+        t = sp.telescope
+        out.append("")
+        out.append(f"== {sp.name}: {t.get('aperture_mm', 0):g} mm, obstruction {float(t.get('obstruction', 0)):.2f}"
+                   f" - {sp.n_split} pairs split tonight, {sp.n_challenge} near misses")
+        sched = sp.schedule
+        if sched is None or len(sched) == 0:
+            out.append("   nothing to schedule (no pair splits and stays up long enough in the dark window)")
+            continue
+        main = sched[sched["section"] == "plan"]
+        chal = sched[sched["section"] == "challenge"]
+        out += ["   " + x for x in table_lines(main)]
+        if len(chal):
+            out.append("")
+            out.append("   Challenges (near misses - may not split tonight):")
+            out += ["   " + x for x in table_lines(chal)]
+    if plan.matrix is not None and len(plan.matrix):
+        out.append("")
+        out.append("== Who splits what (split / near / -), and who takes it")
+        names = [s.name for s in plan.scopes]
+        out.append(f"   {'pair':<24}" + "".join(f"{n[:10]:>11}" for n in names) + "   assigned")
+        for idx, r in plan.matrix.head(40).iterrows():
+            label = f"{r['wds_id']} {r['discoverer']} {r['components']}"[:24]
+            out.append(f"   {label:<24}" + "".join(f"{r[n]:>11}" for n in names) + f"   {r['assigned']}")
+        if len(plan.matrix) > 40:
+            out.append(f"   ... {len(plan.matrix) - 40} more (use --out FILE.csv/.html for all)")
+    out.append("")
+    out += [f"! {c}" for c in plan.cautions]
+    return "\n".join(out) + "\n"

@@ -1,0 +1,41 @@
+"""Escaping of catalogue and user text on its way into HTML, CSV and PDF.
+
+Catalogue files and user lists are untrusted input: a discoverer name such as
+``<script>`` or a CSV cell starting with ``=`` must reach the reader as text,
+never as markup or a spreadsheet formula.
+
+* HTML: :func:`html_text` (``html.escape`` with quotes) for every string.
+* CSV: :func:`csv_cell` prefixes a single quote to a cell starting with
+  ``=``, ``+``, ``-``, ``@``, a tab or a carriage return (the OWASP advice
+  on CSV injection; common practice).  Numbers are written as numbers, so a
+  negative declination stays numeric.
+* PDF (matplotlib text): :func:`pdf_text` escapes ``$`` (which would start
+  mathtext) and drops control characters.
+"""
+
+from __future__ import annotations
+
+import html
+
+_FORMULA_PREFIXES = ("=", "+", "-", "@", "\t", "\r")
+
+
+def html_text(value) -> str:
+    """Text safe to place inside HTML elements and quoted attributes."""
+    return html.escape("" if value is None else str(value), quote=True)
+
+
+def csv_cell(value):
+    """A text cell that a spreadsheet will not run as a formula."""
+    if not isinstance(value, str):
+        return value
+    if value.startswith(_FORMULA_PREFIXES):
+        return "'" + value
+    return value
+
+
+def pdf_text(value) -> str:
+    """Text for matplotlib: no mathtext, no control characters."""
+    s = "" if value is None else str(value)
+    s = "".join(ch if ch >= " " or ch == "\n" else " " for ch in s)
+    return s.replace("\\", "\\\\").replace("$", r"\$")
