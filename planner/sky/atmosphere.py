@@ -205,8 +205,9 @@ def pressure_from_elevation_hpa(elevation_m):
     """Standard-atmosphere pressure at an elevation: P = 1013.25 (1 - 2.25577e-5 h)^5.25588 hPa.
 
     The tropospheric barometric formula of the International Standard
-    Atmosphere (ISO 2533:1975; U.S. Standard Atmosphere 1976), the same
-    expression as ``pvlib.atmosphere.alt2pres``.  Valid to 11 km.
+    Atmosphere (ISO 2533:1975; U.S. Standard Atmosphere 1976); pvlib's
+    ``alt2pres`` writes the same law with rounded constants (agreement
+    1e-5).  Valid to 11 km.
     """
     h = _asarray(elevation_m)
     return 1013.25 * (1.0 - 2.25577e-5 * h) ** 5.25588

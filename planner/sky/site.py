@@ -19,7 +19,7 @@ Conventions
 * ``pressure_hpa``: station pressure; if omitted it is derived from the
   elevation with the standard-atmosphere formula
   P = 1013.25 (1 - 2.25577e-5 h)^5.25588 hPa (ISO 2533 / U.S. Standard
-  Atmosphere 1976; same as ``pvlib.atmosphere.alt2pres``).
+  Atmosphere 1976; pvlib's ``alt2pres`` agrees to 1e-5).
 """
 
 from __future__ import annotations

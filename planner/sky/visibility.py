@@ -22,13 +22,14 @@ Method (see docs/sky.md for the derivation and accuracy):
    inside, otherwise the window edge with the smaller |hour angle|
    (altitude falls monotonically with |H|).
 5. **Horizon profile** (if the site has one), which depends on azimuth:
-   rising and setting are found by a fixed 4-step iteration
+   rising and setting are found by a fixed 6-step iteration
    (limit = max(min_alt, profile(azimuth at the crossing)), recompute H0),
-   separately for the eastern and western crossing; the time above the limit
-   inside the window is then measured with a midpoint rule on
-   ``horizon_samples`` (default 24) instants across the window, only for the
-   targets that get above the minimum altitude at all, in chunks (bounded
-   memory).  If the analytic best instant is hidden by the profile, the
+   separately for the eastern and western crossing, and the time above the
+   limit inside the window follows analytically from those crossings.  It is
+   checked on ``horizon_samples`` (default 24) instants across the window,
+   only for the targets that get above the minimum altitude at all, in
+   chunks (bounded memory): where a sample disagrees (a notch or a second
+   obstruction), a midpoint rule on the samples replaces the analytic value.  If the analytic best instant is hidden by the profile, the
    highest clear sample is taken instead.
 
 No per-target Python loop and no dense time grid over the catalogue.
@@ -191,13 +192,16 @@ def visibility(ra_deg, dec_deg, site: Site, night: Night, *, airmass_model: str 
     set_s = np.where(crosses, tau0 + H_set / OMEGA_RAD_S, np.nan)
 
     # 3. time above the limit inside the dark window (analytic intersection)
-    up = np.zeros(n)
-    if has_dark:
+    def up_seconds(h_r, h_s):
+        tot = np.zeros(n)
         for k in (-1, 0, 1):  # three shifted copies, each vectorised over all targets
-            lo = tau0 + k * SIDEREAL_DAY_S - H_rise / OMEGA_RAD_S
-            hi = tau0 + k * SIDEREAL_DAY_S + H_set / OMEGA_RAD_S
-            up += np.maximum(0.0, np.minimum(b, hi) - np.maximum(a, lo))
-        up = np.minimum(up, b - a)
+            lo = tau0 + k * SIDEREAL_DAY_S - h_r / OMEGA_RAD_S
+            hi = tau0 + k * SIDEREAL_DAY_S + h_s / OMEGA_RAD_S
+            tot += np.maximum(0.0, np.minimum(b, hi) - np.maximum(a, lo))
+        return np.minimum(tot, b - a)
+
+    up = up_seconds(H_rise, H_set) if has_dark else np.zeros(n)
+    above_min = (up_seconds(H0, H0) > 0.0) if (has_dark and site.horizon is not None) else None
 
     # 4. best time: highest point inside the window
     if has_dark:
@@ -212,7 +216,8 @@ def visibility(ra_deg, dec_deg, site: Site, night: Night, *, airmass_model: str 
         observable = up > 0.0
         if site.horizon is not None:
             up, observable, best_s, alt_t, az_t = _profile_sampling(
-                sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, horizon_samples)
+                sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, horizon_samples,
+                tau0, H_rise, H_set, above_min)
     else:
         best_s = np.full(n, np.nan)
         alt_t = az_t = np.full(n, np.nan)
@@ -255,7 +260,7 @@ def _az_at_alt(sd, cd, sphi, cphi, H):
     return np.degrees(az)
 
 
-def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, iterations: int = 4):
+def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, iterations: int = 6):
     """Semi-arc to the crossing of max(min_alt, horizon profile), by fixed-point iteration."""
     P, T = site.pressure_hpa, site.temperature_c
     H = H0
@@ -266,14 +271,21 @@ def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, iterations: in
     return H
 
 
-def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, m):
-    """Time above max(min_alt, profile) by a midpoint rule on ``m`` instants (candidates only)."""
+def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t, az_t, m,
+                      tau0, H_rise, H_set, above_min):
+    """Time above max(min_alt, profile), checked on ``m`` instants (candidates only).
+
+    Where the clear/hidden pattern of the samples agrees with the analytic
+    up-interval (from the iterated crossings), the analytic minutes are kept
+    (exact); otherwise -- a notch or a second obstruction in the profile --
+    the midpoint-rule estimate (fraction of clear samples x window) is used.
+    """
     P, T = site.pressure_hpa, site.temperature_c
     up = up.copy()
     best_s, alt_t, az_t = best_s.copy(), alt_t.copy(), az_t.copy()
     observable = np.zeros(up.shape, dtype=bool)
     # targets above min_alt at some time: only these can clear the profile
-    cand = np.flatnonzero(up > 0.0)
+    cand = np.flatnonzero(above_min)
     ts = a + (np.arange(m) + 0.5) * (b - a) / m
     for s in range(0, cand.size, _CHUNK):
         idx = cand[s:s + _CHUNK]
@@ -281,8 +293,15 @@ def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t,
         alt, az = _alt_az_fast(sd[idx, None], cd[idx, None], sphi, cphi, ha)
         lim_true = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az)), P, T)
         clear = np.degrees(alt) >= lim_true
-        up[idx] = clear.mean(axis=1) * (b - a)
-        observable[idx] = clear.any(axis=1)
+        inside = np.zeros(clear.shape, dtype=bool)
+        for k in (-1, 0, 1):
+            lo = (tau0[idx] + k * SIDEREAL_DAY_S - H_rise[idx] / OMEGA_RAD_S)[:, None]
+            hi = (tau0[idx] + k * SIDEREAL_DAY_S + H_set[idx] / OMEGA_RAD_S)[:, None]
+            inside |= (ts[None, :] >= lo) & (ts[None, :] <= hi)
+        agree = (clear == inside).all(axis=1)
+        up_an = up[idx]
+        up[idx] = np.where(agree, up_an, clear.mean(axis=1) * (b - a))
+        observable[idx] = np.where(agree, up_an > 0.0, clear.any(axis=1))
         # analytic best hidden by the profile -> highest clear sample
         lim_best = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az_t[idx])), P, T)
         hidden = (np.degrees(alt_t[idx]) < lim_best) & clear.any(axis=1)
