@@ -1,0 +1,193 @@
+"""``splitplan night``: tonight's plan of pairs this telescope (or these telescopes) can split.
+
+The option parsing that ``apertures`` shares (site, date, seeing, filters,
+catalogue) lives here in :func:`build_request`.  Heavy imports happen inside
+the functions.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import List, Optional
+
+import typer
+
+from planner.cli import app
+
+SITE_HELP = "Saved site profile (see 'splitplan profile site list')."
+DARK_HELP = "How dark the window must be: civil (Sun below -6 deg), nautical (-12) or astronomical (-18)."
+
+
+def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min_alt=None, date=None,
+                  scope=None, aperture=None, obstruction=None, session=None, seeing=None, steadiness=None,
+                  darkness=None, mag_max=None, mag2_max=None, dm_max=None, sep_min=None, sep_max=None,
+                  constellation=None, ra_from=None, ra_to=None, orbits_only=False, targets=None,
+                  catalog=None, minutes=None, limit=None, challenges=False, start=None, end=None,
+                  share_margin=None):
+    """Turn command-line values into a :class:`planner.plan.model.NightRequest`."""
+    from planner.config import profiles
+    from planner.errors import InputError
+    from planner.plan.model import NightRequest
+
+    site_d, site_name = None, ""
+    scopes: list[dict] = []
+    if session:
+        from planner.config.planfile import read_plan_file
+
+        data = read_plan_file(session)
+        if isinstance(data.get("site"), dict):
+            site_d, site_name = dict(data["site"]), str(data.get("site_name", ""))
+        elif isinstance(data.get("site"), str):
+            site_d, site_name = profiles.get("site", data["site"]), data["site"]
+        for sc in list(data.get("scopes", [])) + list(data.get("scope", [])):
+            if not isinstance(sc, dict):
+                raise InputError(f"session file {session}: each [[scope]] must be a table")
+            if "profile" in sc:
+                d = profiles.get("scope", sc["profile"])
+                d["name"] = sc.get("name", sc["profile"])
+            else:
+                d = dict(sc)
+            scopes.append(d)
+    if site:
+        site_d, site_name = profiles.get("site", site), site
+    if lat is not None or lon is not None:
+        if lat is None or lon is None:
+            raise InputError("give both --lat and --lon (degrees; east positive)")
+        if site:
+            raise InputError("give either --site NAME or --lat/--lon, not both")
+        site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0, "tz": tz or "UTC"}
+        site_name = ""
+    elif site_d is not None:
+        if elevation is not None:
+            site_d["elevation_m"] = elevation
+        if tz is not None:
+            site_d["tz"] = tz
+    if site_d is None:
+        raise InputError("no site: give --site NAME (a saved profile) or --lat, --lon and --tz")
+    if min_alt is not None:
+        site_d["min_alt_deg"] = min_alt
+    for name in scope or []:
+        d = profiles.get("scope", name)
+        d["name"] = name
+        scopes.append(d)
+    aps = list(aperture or [])
+    obs = list(obstruction or [])
+    if obs and not aps and not scopes:
+        raise InputError("--obstruction needs an --aperture (mm)")
+    if len(obs) > 1 and len(obs) != len(aps):
+        raise InputError(f"give one --obstruction for all apertures or one per --aperture ({len(aps)})")
+    for k, a in enumerate(aps):
+        o = obs[k] if len(obs) > 1 else (obs[0] if obs else 0.0)
+        scopes.append({"name": f"{a:g} mm" + (f" ({k + 1})" if [x for x in aps].count(a) > 1 else ""),
+                       "aperture_mm": a, "obstruction": o})
+    if not scopes:
+        raise InputError("no telescope: give --aperture MM (and --obstruction), --scope NAME or --session FILE")
+    filters = {"mag_max": mag_max, "mag2_max": mag2_max, "dm_max": dm_max, "sep_min_arcsec": sep_min,
+               "sep_max_arcsec": sep_max, "constellations": list(constellation) if constellation else None,
+               "ra_from_h": ra_from, "ra_to_h": ra_to, "orbits_only": True if orbits_only else None,
+               "targets": str(Path(targets).resolve()) if targets else None}
+    filters = {k: v for k, v in filters.items() if v is not None}
+    for k in ("ra_from_h", "ra_to_h"):
+        if k in filters and not 0 <= filters[k] <= 24:
+            raise InputError(f"--{k[:-2].replace('_', '-')} {filters[k]} must be an hour of RA, 0-24")
+    if "targets" in filters and not Path(filters["targets"]).is_file():
+        raise InputError(f"target list {targets} does not exist or is not a file")
+    req = NightRequest(site=site_d, scopes=scopes, site_name=site_name, date=date,
+                       seeing_arcsec=seeing, steadiness=steadiness, darkness=darkness or "nautical",
+                       catalog=catalog or "sample", minutes=minutes or 10.0, limit=limit or 20,
+                       challenges=bool(challenges), start_local=start, end_local=end, filters=filters)
+    if share_margin is not None:
+        req.share_margin = share_margin
+    return req
+
+
+def emit(plan, as_json: bool, out: Optional[Path]) -> None:
+    from planner.report import write_report
+    from planner.report.exports import plan_json, render_text
+
+    if as_json:
+        sys.stdout.write(plan_json(plan) + "\n")
+    else:
+        sys.stdout.write(render_text(plan))
+    if out is not None:
+        fmt = write_report(plan, out)
+        print(f"splitplan: wrote {fmt} plan to {out}", file=sys.stderr)
+
+
+@app.command("night", no_args_is_help=True)
+def night(
+    site: Optional[str] = typer.Option(None, "--site", help=SITE_HELP, rich_help_panel="Site"),
+    lat: Optional[float] = typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel="Site"),
+    lon: Optional[float] = typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel="Site"),
+    elevation: Optional[float] = typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel="Site"),
+    tz: Optional[str] = typer.Option(None, "--tz", help="IANA time zone, e.g. Europe/Berlin.", rich_help_panel="Site"),
+    min_alt: Optional[float] = typer.Option(None, "--min-alt", help="Lowest useful altitude, deg (default 20).", rich_help_panel="Site"),
+    date: Optional[str] = typer.Option(None, "--date", help="Local date of the evening, YYYY-MM-DD (default tonight)."),
+    scope: Optional[List[str]] = typer.Option(None, "--scope", help="Saved telescope (repeat for a club session).", rich_help_panel="Telescope"),
+    aperture: Optional[List[float]] = typer.Option(None, "--aperture", help="Clear aperture, mm (repeatable).", rich_help_panel="Telescope"),
+    obstruction: Optional[List[float]] = typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio 0-0.9.", rich_help_panel="Telescope"),
+    session: Optional[Path] = typer.Option(None, "--session", help="Club session file (TOML: [[scope]] tables, optional [site]).", rich_help_panel="Telescope"),
+    seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel="Air"),
+    steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 by eye, converted by the seeing table (docs/plan.md).", rich_help_panel="Air"),
+    darkness: Optional[str] = typer.Option(None, "--darkness", help=DARK_HELP, rich_help_panel="Air"),
+    mag_max: Optional[float] = typer.Option(None, "--mag-max", help="Primary no fainter than this.", rich_help_panel="Filters"),
+    mag2_max: Optional[float] = typer.Option(None, "--mag2-max", help="Companion no fainter than this.", rich_help_panel="Filters"),
+    dm_max: Optional[float] = typer.Option(None, "--dm-max", help="Largest magnitude difference.", rich_help_panel="Filters"),
+    sep_min: Optional[float] = typer.Option(None, "--sep-min", help="Smallest separation tonight, arcsec.", rich_help_panel="Filters"),
+    sep_max: Optional[float] = typer.Option(None, "--sep-max", help="Largest separation tonight, arcsec.", rich_help_panel="Filters"),
+    constellation: Optional[List[str]] = typer.Option(None, "--constellation", help="IAU abbreviation, e.g. Cyg (repeatable).", rich_help_panel="Filters"),
+    ra_from: Optional[float] = typer.Option(None, "--ra-from", help="RA window start, hours.", rich_help_panel="Filters"),
+    ra_to: Optional[float] = typer.Option(None, "--ra-to", help="RA window end, hours (may wrap past 0h).", rich_help_panel="Filters"),
+    orbits_only: bool = typer.Option(False, "--orbits-only", help="Only pairs whose position comes from an orbit.", rich_help_panel="Filters"),
+    targets: Optional[Path] = typer.Option(None, "--targets", help="Your own list (CSV of WDS ids or designations).", rich_help_panel="Filters"),
+    catalog: Optional[str] = typer.Option(None, "--catalog", help="sample (bundled), vizier (local snapshot) or a file path."),
+    minutes: Optional[float] = typer.Option(None, "--minutes", help="Minutes per target (default 10).", rich_help_panel="Schedule"),
+    limit: Optional[int] = typer.Option(None, "--limit", help="At most this many pairs per scope (default 20).", rich_help_panel="Schedule"),
+    challenges: bool = typer.Option(False, "--challenges", help="Add near misses in their own section.", rich_help_panel="Schedule"),
+    start: Optional[str] = typer.Option(None, "--start", help="Start no earlier than HH:MM local.", rich_help_panel="Schedule"),
+    end: Optional[str] = typer.Option(None, "--end", help="Finish by HH:MM local.", rich_help_panel="Schedule"),
+    share_margin: Optional[float] = typer.Option(None, "--share-margin", help="Club sharing: margin counted as comfortable (default 1.5).", rich_help_panel="Schedule"),
+    as_json: bool = typer.Option(False, "--json", help="Print a JSON array, one object per scheduled pair.", rich_help_panel="Output"),
+    out: Optional[Path] = typer.Option(None, "--out", help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt", rich_help_panel="Output"),
+    save_plan: Optional[Path] = typer.Option(None, "--save-plan", help="Record every input in a plan file (TOML).", rich_help_panel="Output"),
+    plan_file: Optional[Path] = typer.Option(None, "--plan", help="Rerun the inputs recorded in a plan file.", rich_help_panel="Output"),
+):
+    """Pairs your telescope can split tonight, ranked and ordered through the night."""
+    from planner.errors import InputError
+    from planner.plan.night import plan_night
+
+    given = dict(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
+                 scope=scope, aperture=aperture, obstruction=obstruction, session=session, seeing=seeing,
+                 steadiness=steadiness, darkness=darkness, mag_max=mag_max, mag2_max=mag2_max, dm_max=dm_max,
+                 sep_min=sep_min, sep_max=sep_max, constellation=constellation, ra_from=ra_from, ra_to=ra_to,
+                 orbits_only=orbits_only, targets=targets, catalog=catalog, minutes=minutes, limit=limit,
+                 challenges=challenges, start=start, end=end, share_margin=share_margin)
+    if darkness is not None and darkness not in ("civil", "nautical", "astronomical"):
+        raise InputError(f"--darkness {darkness!r} is not one of civil, nautical, astronomical")
+    if plan_file is not None:
+        extra = [k for k, v in given.items() if v not in (None, False, [])]
+        if extra:
+            raise InputError(f"--plan {plan_file} fixes every input; drop --{extra[0].replace('_', '-')}")
+        req = request_from_plan(plan_file)
+    else:
+        req = build_request(**given)
+    plan = plan_night(req)
+    if save_plan is not None:
+        from planner.config.planfile import write_plan_file
+
+        write_plan_file(save_plan, req.to_dict(), plan.version, plan.catalog_source)
+        print(f"splitplan: saved the inputs to {save_plan} (rerun with --plan {save_plan})", file=sys.stderr)
+    emit(plan, as_json, out)
+
+
+def request_from_plan(path):
+    from planner import __version__
+    from planner.config.planfile import read_plan_file
+    from planner.plan.model import NightRequest
+
+    data = read_plan_file(path)
+    v = data.get("splitplan_version")
+    if v and v != __version__:
+        print(f"splitplan: note: {path} was written by splitplan {v}; this is {__version__}", file=sys.stderr)
+    return NightRequest.from_dict(data)
