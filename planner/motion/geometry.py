@@ -131,9 +131,9 @@ def linear_positions(rho_first, theta_first_deg, year_first, rho_last, theta_las
     """
     r1, t1, y1 = (np.asarray(v, dtype=float) for v in (rho_first, theta_first_deg, year_first))
     r2, t2, y2 = (np.asarray(v, dtype=float) for v in (rho_last, theta_last_deg, year_last))
-    r1, t1, y1, r2, t2, y2 = np.broadcast_arrays(r1, t1, y1, r2, t2, y2)
-    t = np.broadcast_to(np.asarray(epoch_yr, dtype=float), r2.shape)
-    nobs = np.full(r2.shape, np.nan) if n_obs is None else np.broadcast_to(np.asarray(n_obs, float), r2.shape)
+    nobs = np.nan if n_obs is None else np.asarray(n_obs, dtype=float)
+    r1, t1, y1, r2, t2, y2, t, nobs = (np.atleast_1d(v) for v in np.broadcast_arrays(
+        r1, t1, y1, r2, t2, y2, np.asarray(epoch_yr, dtype=float), nobs))
 
     x1, e1 = _xy(r1, t1)
     x2, e2 = _xy(r2, t2)
