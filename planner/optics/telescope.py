@@ -1,0 +1,126 @@
+"""The instrument: aperture, obstruction, focal length, eyepieces, camera."""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass, field
+
+from planner.errors import InputError
+
+KINDS = ("refractor", "newtonian", "sct", "maksutov", "cassegrain", "binocular", "other")
+
+
+@dataclass(frozen=True)
+class Telescope:
+    """A telescope, checked on creation.
+
+    aperture_mm : clear aperture, 10-10000 mm
+    obstruction : central obstruction as a diameter ratio, 0 <= eps < 1
+        (a warning above 0.6, which is unusual)
+    focal_length_mm : focal length (> 0) or None
+    kind : optical type, one of :data:`KINDS`
+    eyepieces_mm : focal lengths of the eyepieces at hand (> 0)
+    pixel_um : camera pixel size (> 0) or None
+    name : free text
+    wavelength_nm : observing band, 550 nm (visual) by default, 200-5000 nm
+    """
+
+    aperture_mm: float
+    obstruction: float = 0.0
+    focal_length_mm: float | None = None
+    kind: str = "refractor"
+    eyepieces_mm: tuple = field(default_factory=tuple)
+    pixel_um: float | None = None
+    name: str = ""
+    wavelength_nm: float = 550.0
+
+    def __post_init__(self):
+        def num(value, label, allowed):
+            try:
+                v = float(value)
+            except (TypeError, ValueError):
+                raise InputError(f"{label} = {value!r} is not a number; use {allowed}") from None
+            if not math.isfinite(v):
+                raise InputError(f"{label} = {value!r} is not allowed; use {allowed}")
+            return v
+
+        ap = num(self.aperture_mm, "aperture_mm", "a clear aperture between 10 and 10000 mm")
+        if not 10.0 <= ap <= 10000.0:
+            raise InputError(f"aperture_mm = {ap:g} is not allowed; use a clear aperture between 10 and 10000 mm")
+        object.__setattr__(self, "aperture_mm", ap)
+        eps = num(self.obstruction, "obstruction", "a diameter ratio from 0 up to (not including) 1, e.g. 0.33")
+        if not 0.0 <= eps < 1.0:
+            raise InputError(f"obstruction = {eps:g} is not allowed; use a diameter ratio from 0 up to "
+                             "(not including) 1, e.g. 0.33")
+        if eps > 0.6:
+            warnings.warn(f"obstruction {eps:g} is unusually large (above 0.6); check it is a diameter ratio",
+                          stacklevel=3)
+        object.__setattr__(self, "obstruction", eps)
+        if self.focal_length_mm is not None:
+            f = num(self.focal_length_mm, "focal_length_mm", "a focal length in mm greater than 0")
+            if f <= 0:
+                raise InputError(f"focal_length_mm = {f:g} is not allowed; use a focal length in mm greater than 0")
+            object.__setattr__(self, "focal_length_mm", f)
+        kind = str(self.kind).strip().lower()
+        if kind not in KINDS:
+            raise InputError(f"kind = {self.kind!r} is unknown; choose one of {', '.join(KINDS)}")
+        object.__setattr__(self, "kind", kind)
+        eps_mm = self.eyepieces_mm
+        if isinstance(eps_mm, (int, float)):
+            eps_mm = (eps_mm,)
+        eyes = tuple(num(e, "eyepiece focal length", "focal lengths in mm greater than 0") for e in eps_mm)
+        if any(e <= 0 for e in eyes):
+            raise InputError(f"eyepiece focal length {min(eyes):g} is not allowed; use focal lengths in mm "
+                             "greater than 0")
+        if eyes and self.focal_length_mm is None:
+            raise InputError("eyepieces were given without focal_length_mm; give the telescope's focal length")
+        object.__setattr__(self, "eyepieces_mm", tuple(sorted(eyes)))
+        if self.pixel_um is not None:
+            p = num(self.pixel_um, "pixel_um", "a pixel size in micrometres greater than 0")
+            if p <= 0:
+                raise InputError(f"pixel_um = {p:g} is not allowed; use a pixel size in micrometres greater than 0")
+            object.__setattr__(self, "pixel_um", p)
+        lam = num(self.wavelength_nm, "wavelength_nm", "a wavelength between 200 and 5000 nm")
+        if not 200.0 <= lam <= 5000.0:
+            raise InputError(f"wavelength_nm = {lam:g} is not allowed; use a wavelength between 200 and 5000 nm")
+        object.__setattr__(self, "wavelength_nm", lam)
+
+    # -- derived quantities -------------------------------------------------
+    @property
+    def focal_ratio(self) -> float | None:
+        return None if self.focal_length_mm is None else self.focal_length_mm / self.aperture_mm
+
+    @property
+    def magnifications(self) -> tuple:
+        """Powers given by the eyepieces at hand (highest last)."""
+        if self.focal_length_mm is None:
+            return ()
+        return tuple(sorted(self.focal_length_mm / e for e in self.eyepieces_mm))
+
+    @property
+    def has_camera(self) -> bool:
+        return self.pixel_um is not None and self.focal_length_mm is not None
+
+    @property
+    def pixel_scale_arcsec(self) -> float | None:
+        """Sky angle of one camera pixel [arcsec] = 206.265 x pixel[um] / f[mm]."""
+        if not self.has_camera:
+            return None
+        from planner.optics.limits import ARCSEC_PER_RAD
+
+        return self.pixel_um * 1e-3 / self.focal_length_mm * ARCSEC_PER_RAD
+
+    def limit_arcsec(self, criterion: str = "dawes") -> float:
+        """Classical equal-pair limit of this aperture at its wavelength."""
+        from planner.optics.limits import limit_arcsec
+
+        return float(limit_arcsec(self.aperture_mm, self.wavelength_nm, criterion))
+
+    def airy_radius_um(self) -> float | None:
+        """Radius of the first dark ring in the focal plane [um] (None without a focal length)."""
+        if self.focal_length_mm is None:
+            return None
+        from planner.optics.limits import airy_radius_um
+
+        return float(airy_radius_um(self.focal_length_mm, self.aperture_mm, self.wavelength_nm))
