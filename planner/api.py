@@ -1,0 +1,74 @@
+"""The small public Python API of splitplan.
+
+Everything heavy is imported inside the functions, so ``import planner.api``
+is cheap.  Example::
+
+    from planner.api import plan_night, write_report
+    plan = plan_night(site={"lat_deg": 47.1, "lon_deg": 8.2, "elevation_m": 600, "tz": "Europe/Zurich"},
+                      scopes=[{"name": "4-inch", "aperture_mm": 102}], date="2026-12-02", seeing_arcsec=1.5)
+    print(plan.schedule[["slot_local", "discoverer", "rho_arcsec", "margin"]])
+    write_report(plan, "tonight.html")
+"""
+
+from __future__ import annotations
+
+
+def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
+               catalog="sample", minutes=10.0, limit=20, challenges=False, filters=None, site_name="",
+               start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5):
+    """The night plan (a :class:`planner.plan.model.NightPlan`); see :mod:`planner.plan.night`.
+
+    ``site``: dict with ``lat_deg``, ``lon_deg``, ``elevation_m``, ``tz`` (and
+    optionally ``min_alt_deg``); ``scopes``: a list of dicts with ``name``,
+    ``aperture_mm``, ``obstruction``; ``catalog``: a spec string or a loaded
+    Catalog.
+    """
+    from planner.plan.model import NightRequest
+    from planner.plan.night import plan_night as _plan
+
+    cat = None
+    spec = catalog
+    if not isinstance(catalog, str):
+        cat, spec = catalog, str(getattr(catalog, "source", "catalog object"))
+    if isinstance(scopes, dict):
+        scopes = [scopes]
+    req = NightRequest(site=dict(site), scopes=[dict(s) for s in scopes], site_name=site_name, date=date,
+                       seeing_arcsec=seeing_arcsec, steadiness=steadiness, darkness=darkness, catalog=spec,
+                       minutes=minutes, limit=limit, challenges=challenges, filters=dict(filters or {}),
+                       start_local=start_local, end_local=end_local, min_alt_deg=min_alt_deg,
+                       share_margin=share_margin)
+    return _plan(req, catalog=cat)
+
+
+def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_arcsec=2.0, **kw):
+    """Verdict, best time tonight and best dates of the year for one pair; see
+    :func:`planner.plan.single.check_pair`."""
+    from planner.plan.single import check_pair as _check
+
+    return _check(catalog, query, site, local_date, telescope, seeing_arcsec, **kw)
+
+
+def compare_apertures(site, apertures_mm, date=None, *, date_to=None, nights=4, obstruction=0.0,
+                      seeing_arcsec=None, steadiness=None, darkness="nautical", catalog="sample",
+                      minutes=10.0, filters=None):
+    """Pairs split per aperture (and what each step adds); see :mod:`planner.plan.apertures`."""
+    from planner.plan.apertures import compare_apertures as _cmp
+    from planner.plan.model import NightRequest
+
+    cat = None if isinstance(catalog, str) else catalog
+    req = NightRequest(site=dict(site), scopes=[{"aperture_mm": float(min(apertures_mm)),
+                                                 "obstruction": obstruction}], date=date,
+                       seeing_arcsec=seeing_arcsec, steadiness=steadiness, darkness=darkness,
+                       catalog=catalog if isinstance(catalog, str) else "object", minutes=minutes,
+                       filters=dict(filters or {}))
+    return _cmp(req, apertures_mm, date_to=date_to, nights=nights, catalog=cat)
+
+
+def write_report(plan, path):
+    """Write a plan as CSV, JSON, VOTable (.xml/.vot), HTML, PDF or text by the extension of ``path``."""
+    from planner.report import write_report as _write
+
+    return _write(plan, path)
+
+
+__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report"]
