@@ -1,0 +1,92 @@
+"""``splitplan catalog``: what is loaded, download from VizieR, bring in a local file."""
+
+from __future__ import annotations
+
+import json
+import sys
+from typing import Optional
+
+import typer
+
+from planner.cli import app
+
+catalog_app = typer.Typer(
+    help="The double-star and orbit catalogues the planner works from: look at them, "
+         "download the full ones from CDS VizieR, or bring in your own copy.",
+    no_args_is_help=True,
+)
+app.add_typer(catalog_app, name="catalog")
+
+
+def _problem_summary(problems: list, limit: int = 10) -> list[str]:
+    """Skipped lines grouped by file and reason, with the first line numbers."""
+    groups: dict[tuple, list[int]] = {}
+    for file, line_no, reason in problems:
+        groups.setdefault((str(file), reason), []).append(int(line_no))
+    out = []
+    for (file, reason), nums in list(groups.items())[:limit]:
+        shown = ", ".join(str(n) for n in nums[:8]) + (", ..." if len(nums) > 8 else "")
+        out.append(f"{file}: {len(nums)} line(s) skipped, {reason} (line {shown})")
+    return out
+
+
+@catalog_app.command("show")
+def show(
+    catalog: str = typer.Option("sample", "--catalog", "-c",
+                                help="'sample' (bundled), 'vizier' (your downloaded copy) or the "
+                                     "path of a WDS summary or ORB6 orbits text file."),
+    orbits: Optional[str] = typer.Option(None, "--orbits",
+                                         help="An ORB6 orbits file to go with a WDS file."),
+    as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
+):
+    """Say which catalogue is loaded, when it was copied, and what it holds."""
+    from planner.catalogs.catalog import load_catalog
+
+    cat = load_catalog(catalog, orbits=orbits)
+    info = cat.summary()
+    info["problem_lines"] = _problem_summary(cat.problems)
+    if as_json:
+        sys.stdout.write(json.dumps(info, indent=1) + "\n")
+        return
+    grades = ", ".join(f"grade {g}: {n}" for g, n in info["orbits_by_grade"].items()) or "none"
+    print(f"source:    {info['source']}")
+    print(f"copied:    {info['retrieved']}")
+    print(f"pairs:     {info['pairs']}")
+    print(f"pairs with a usable orbit (complete, grade 1-5): {info['pairs_with_usable_orbit']}")
+    print(f"orbits:    {info['orbits']} ({info['orbits_complete']} with complete elements)")
+    print(f"by grade:  {grades}")
+    print(f"skipped lines: {info['problems']}")
+    for line in info["problem_lines"]:
+        print(f"  {line}")
+
+
+@catalog_app.command("fetch")
+def fetch():
+    """Download the full WDS and ORB6 from CDS VizieR and keep them as your local copy.
+
+    The previous copy is kept if the download fails or is incomplete."""
+    from planner.catalogs import vizier
+
+    cat = vizier.fetch()
+    meta = vizier.current_snapshot() or {}
+    print(f"stored {len(cat.pairs)} pairs and {len(cat.orbits)} orbits from {cat.source} "
+          f"({cat.retrieved}) in {vizier.snapshot_root()}")
+    missing = {k: v for k, v in (meta.get("missing_fields") or {}).items() if v}
+    for k, v in missing.items():
+        print(f"note: VizieR {k.upper()} table has no column for: {', '.join(v)}", file=sys.stderr)
+
+
+@catalog_app.command("import")
+def import_(
+    path: str = typer.Argument(..., help="A WDS summary or ORB6 orbits text file."),
+    orbits: Optional[str] = typer.Option(None, "--orbits",
+                                         help="An ORB6 orbits file to store with a WDS file."),
+):
+    """Check a local catalogue file and, if it reads, store a copy as your local catalogue
+    (used with --catalog vizier)."""
+    from planner.catalogs import vizier
+
+    meta = vizier.import_files(path, orbits=orbits)
+    rows = meta["rows"]
+    print(f"stored {meta['source']}: {rows['pairs']} pairs, {rows['orbits']} orbits "
+          f"(use --catalog vizier)")
