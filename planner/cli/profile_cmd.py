@@ -69,7 +69,7 @@ def site_remove(name: str = typer.Argument(..., help="Name of the saved site."))
 def scope_add(name: str = typer.Argument(..., help="A name for the telescope."),
               aperture: float = typer.Option(..., "--aperture", help="Clear aperture, mm."),
               obstruction: float = typer.Option(0.0, "--obstruction", help="Central obstruction, diameter ratio."),
-              kind: Optional[str] = typer.Option(None, "--kind", help="refractor, reflector, SCT, Maksutov ..."),
+              kind: Optional[str] = typer.Option(None, "--kind", help="refractor, newtonian, sct, maksutov, cassegrain, binocular, other."),
               focal: Optional[float] = typer.Option(None, "--focal", help="Focal length, mm."),
               replace: bool = typer.Option(False, "--replace", help="Overwrite a telescope of the same name.")):
     """Save a telescope."""

@@ -16,7 +16,7 @@ Two files in :func:`planner.config.storage.user_dir` ``('config')``:
     [scope."club 8-inch"]
     aperture_mm = 203.0
     obstruction = 0.33
-    kind = "reflector"          # optional
+    kind = "newtonian"          # optional: refractor, newtonian, sct, maksutov, ...
     focal_mm = 1200.0           # optional
 
 Every entry is validated on the way in (by building the sky engine's site and

@@ -94,7 +94,7 @@ def make_telescope(d: dict, name: str = ""):
     from planner.optics import Telescope
 
     kw = {"aperture_mm": d.get("aperture_mm"), "obstruction": d.get("obstruction", 0.0),
-          "kind": d.get("kind"), "focal_mm": d.get("focal_mm"),
+          "kind": d.get("kind"), "focal_length_mm": d.get("focal_mm"),
           "wavelength_nm": d.get("wavelength_nm"), "name": name or d.get("name", "")}
     kw = {k: v for k, v in kw.items() if v is not None}
     if kw.get("aperture_mm") is None:
