@@ -110,10 +110,12 @@ def sun_sep_deg(ra_deg, dec_deg, site: Site, when) -> np.ndarray:
 
 
 def _sep_deg(ra1, dec1, ra2, dec2):
-    """Great-circle separation (deg), haversine form (stable at small angles)."""
+    """Great-circle separation (deg), Vincenty's atan2 form (stable at 0 and 180 deg)."""
     ra1, dec1, ra2, dec2 = (np.radians(np.asarray(x, dtype=float)) for x in (ra1, dec1, ra2, dec2))
-    s = np.sin((dec2 - dec1) / 2) ** 2 + np.cos(dec1) * np.cos(dec2) * np.sin((ra2 - ra1) / 2) ** 2
-    return np.degrees(2 * np.arcsin(np.sqrt(np.clip(s, 0.0, 1.0))))
+    dra = ra2 - ra1
+    s1, c1, s2, c2 = np.sin(dec1), np.cos(dec1), np.sin(dec2), np.cos(dec2)
+    num = np.hypot(c2 * np.sin(dra), c1 * s2 - s1 * c2 * np.cos(dra))
+    return np.degrees(np.arctan2(num, s1 * s2 + c1 * c2 * np.cos(dra)))
 
 
 def moon_position(site: Site, when):
