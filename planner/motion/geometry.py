@@ -203,26 +203,30 @@ def _disc_key(df: pd.DataFrame) -> pd.Series:
     return _txt(df, "discoverer").str.replace(r"[\s,\-]", "", regex=True).str.upper()
 
 
-def _link_orbits(pairs: pd.DataFrame, orbits: pd.DataFrame) -> np.ndarray:
-    """Position (0..n-1) in ``pairs`` of the pair each orbit belongs to, NaN if none.
+def _link_orbits(pairs: pd.DataFrame, orbits: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
+    """Links between orbit rows and pair rows, as two position arrays
+    ``(orbit_pos, pair_pos)`` (one entry per link; a pair table that repeats
+    a pair links its orbits to every copy).
 
     First on WDS id + component key + discoverer; an orbit left over is
-    linked on WDS id + component key alone when exactly one pair has that key
-    (e.g. bet Sco, 16054-1948: ORB6 rows for 'bet Sco' and 'BU 947 AB' both
-    have the component key AB and must not be mixed).
+    linked on WDS id + component key alone when exactly one pair (one
+    designation) has that key (e.g. bet Sco, 16054-1948: ORB6 rows for
+    'bet Sco' and 'BU 947 AB' both have the component key AB and must not be
+    mixed).
     """
-    pk, ok = _pair_key(pairs), _pair_key(orbits)
-    pfull, ofull = pk + "|" + _disc_key(pairs), ok + "|" + _disc_key(orbits)
-    pos = np.arange(len(pairs), dtype=float)
-    full_map = pd.Series(pos, index=pfull.to_numpy())
-    full_map = full_map[~full_map.index.duplicated(keep="first")]
-    out = full_map.reindex(ofull.to_numpy()).to_numpy(dtype=float)
-    counts = pk.value_counts()
-    unique_keys = counts.index[counts.to_numpy() == 1]
-    key_map = pd.Series(pos, index=pk.to_numpy())
-    key_map = key_map[key_map.index.isin(unique_keys)]
-    fallback = key_map.reindex(ok.to_numpy()).to_numpy(dtype=float)
-    return np.where(np.isfinite(out), out, fallback)
+    P = pd.DataFrame({"p": np.arange(len(pairs)), "key": _pair_key(pairs).to_numpy()})
+    P["full"] = P["key"] + "|" + _disc_key(pairs).to_numpy()
+    O = pd.DataFrame({"o": np.arange(len(orbits)), "key": _pair_key(orbits).to_numpy()})
+    O["full"] = O["key"] + "|" + _disc_key(orbits).to_numpy()
+    m1 = O.merge(P[["p", "full"]], on="full")
+    rest = O[~O["o"].isin(m1["o"])]
+    ident = P.drop_duplicates("full")
+    n_ident = ident.groupby("key").size()
+    single = P[P["key"].isin(n_ident.index[n_ident.to_numpy() == 1])]
+    m2 = rest.merge(single[["p", "key"]], on="key")
+    o_pos = np.concatenate([m1["o"].to_numpy(int), m2["o"].to_numpy(int)])
+    p_pos = np.concatenate([m1["p"].to_numpy(int), m2["p"].to_numpy(int)])
+    return o_pos, p_pos
 
 
 def _orbit_choice(pairs: pd.DataFrame, orbits: pd.DataFrame, t_pair: np.ndarray, precession: str) -> pd.DataFrame:
@@ -231,10 +235,8 @@ def _orbit_choice(pairs: pd.DataFrame, orbits: pd.DataFrame, t_pair: np.ndarray,
     cols = ["pair", "rho", "theta", "grade", "reference", "spread_rho", "spread_theta", "n", "class"]
     if orbits is None or len(orbits) == 0 or len(pairs) == 0:
         return pd.DataFrame(columns=cols).set_index("pair")
-    pos_pair = _link_orbits(pairs, orbits)
-    linked = np.isfinite(pos_pair)
-    o = orbits.iloc[np.flatnonzero(linked)]
-    pair_pos = pos_pair[linked].astype(int)
+    o_pos, pair_pos = _link_orbits(pairs, orbits)
+    o = orbits.iloc[o_pos]
     if len(o) == 0:
         return pd.DataFrame(columns=cols).set_index("pair")
     p = orbit_positions(o, t_pair[pair_pos], precession=precession)
@@ -353,15 +355,15 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         reason[i] = np.where(visual, reason[i], "interferometric orbit (grade 8); " + reason[i].astype(str))
     # pairs with only astrometric/incomplete orbits say so
     if orbits is not None and len(orbits) and n:
-        link = _link_orbits(pairs, orbits)
-        astro = link[(_num(orbits, "grade") == 9) & np.isfinite(link)].astype(int)
+        o_pos, p_pos = _link_orbits(pairs, orbits)
+        astro = p_pos[_num(orbits, "grade")[o_pos] == 9]
         has_astro = np.zeros(n, bool)
         has_astro[astro] = True
         only_astro = has_astro & ~np.isin(method, ["orbit", "orbit-interferometric"])
         reason[only_astro] = "astrometric orbit only (grade 9, no separation); " + reason[only_astro].astype(str)
         incomplete = ~(orbits["complete"].fillna(False).to_numpy(bool)) if "complete" in orbits.columns \
             else np.zeros(len(orbits), bool)
-        inc = link[incomplete & np.isfinite(link)].astype(int)
+        inc = p_pos[incomplete[o_pos]]
         has_inc = np.zeros(n, bool)
         has_inc[inc] = True
         only_inc = has_inc & ~np.isin(method, ["orbit", "orbit-interferometric"])
