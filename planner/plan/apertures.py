@@ -71,8 +71,7 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
         catalog = cat
         up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
         x = vis["airmass_best"].to_numpy(float)
-        x = np.where(np.isfinite(x), x, 40.0)
-        sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
+            sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
         cols = []
         for a in aps:
             tel = bridge.make_telescope({"aperture_mm": a, "obstruction": obstruction,

@@ -102,11 +102,18 @@ def make_telescope(d: dict, name: str = ""):
     return Telescope(**_kwargs_for(Telescope, kw))
 
 
-def judge(telescope, pairs, seeing_arcsec: float, airmass_x, sky_mag=None):
-    """The verdict table for ``pairs`` (rho_arcsec, mag1, mag2 columns) with this scope."""
+def judge(telescope, pairs, seeing_arcsec: float, airmass_x, sky_mag=None, dispersion_arcsec=None):
+    """The verdict table (positional, 0..n-1) for ``pairs`` (``rho_arcsec``, ``mag1``, ``mag2``) with this scope.
+
+    ``airmass_x``: airmass per pair at the instant judged (NaN: not up).
+    """
     from planner.verdict import judge as _judge
 
-    kw = {"seeing_arcsec": seeing_arcsec, "airmass": airmass_x}
+    kw = {}
     if sky_mag is not None:
-        kw["sky_mag_arcsec2"] = sky_mag
-    return _judge(telescope, pairs, **_kwargs_for(_judge, kw))
+        kw["sky_mag_arcsec2"] = np.asarray(sky_mag, float)
+    if dispersion_arcsec is not None:
+        kw["dispersion_arcsec"] = np.nan_to_num(np.asarray(dispersion_arcsec, float))
+    return _judge(pairs["rho_arcsec"].to_numpy(float), pairs["mag1"].to_numpy(float),
+                  pairs["mag2"].to_numpy(float), np.asarray(airmass_x, float), telescope,
+                  float(seeing_arcsec), **kw)

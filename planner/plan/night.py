@@ -211,9 +211,9 @@ def judge_scope(tel, table: pd.DataFrame, vis: pd.DataFrame, seeing: float, min_
     from planner.plan.score import score_pairs
 
     x = vis["airmass_best"].to_numpy(float)
-    x = np.where(np.isfinite(x), x, 40.0)
     sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
-    v = bridge.judge(tel, table, seeing, x, sky_mag=sky)
+    disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
+    v = bridge.judge(tel, table, seeing, x, sky_mag=sky, dispersion_arcsec=disp)
     v = v.reset_index(drop=True)
     v.index = table.index
     out = pd.concat([table, vis.drop(columns=[c for c in vis.columns if c in table.columns]), v], axis=1)

@@ -137,7 +137,6 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
     ra, dec = float(row["ra_deg"].iloc[0]), float(row["dec_deg"].iloc[0])
     vis = bridge.visibility(np.array([ra]), np.array([dec]), site, night).reset_index(drop=True)
     x = vis["airmass_best"].to_numpy(float)
-    x = np.where(np.isfinite(x), x, 40.0)
     sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
     v = bridge.judge(tel, table.reset_index(drop=True), float(seeing_arcsec), x, sky_mag=sky).iloc[0]
     g = table.iloc[0]
