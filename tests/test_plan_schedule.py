@@ -46,7 +46,7 @@ def _run(**kw):
     ra, dec, score = _targets()
     nat = np.full(len(ra), np.datetime64("NaT"), "datetime64[ns]")
     best = np.full(len(ra), START + (END - START) // 2)
-    args = dict(minutes=15, altaz_fn=lambda r, d, t: alt_az_at(r, d, SITE, t), min_alt_deg=SITE.min_alt_deg,
+    args = dict(minutes=15, altaz_fn=lambda idx, t: alt_az_at(ra[idx], dec[idx], SITE, t), min_alt_deg=SITE.min_alt_deg,
                 limit=30)
     args.update(kw)
     return ra, dec, greedy_schedule(ra, dec, score, best, nat, START, END, **args)
@@ -82,6 +82,21 @@ def test_busy_intervals_are_skipped_and_limit_holds():
 def test_feasibility_hook_can_veto_everything():
     ra, dec, s = _run(feasible_fn=lambda idx, alt, t: np.zeros(len(idx), bool))
     assert len(s) == 0
+
+
+def test_fast_positions_agree_with_the_full_path():
+    # FastAltAz (apparent place once, linear hour angle) vs the sky engine's full ERFA path:
+    # agreement to 0.01 deg over a night is ample for scheduling (common practice, no source)
+    from planner.plan.bridge import FastAltAz
+
+    ra, dec, _ = _targets(200)
+    fast = FastAltAz(ra, dec, SITE, START + (END - START) // 2)
+    for t in (START, END):
+        a1, z1 = fast(np.arange(200), t)
+        a2, z2 = alt_az_at(ra, dec, SITE, t)
+        assert np.max(np.abs(a1 - a2)) < 0.01
+        up = a2 < 89
+        assert np.max(np.abs(((z1 - z2 + 180) % 360 - 180)[up] * np.cos(np.radians(a2[up])))) < 0.01
 
 
 def test_slew_weight_shortens_the_path():

@@ -79,7 +79,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
         raise InputError(f"give one --obstruction for all apertures or one per --aperture ({len(aps)})")
     for k, a in enumerate(aps):
         o = obs[k] if len(obs) > 1 else (obs[0] if obs else 0.0)
-        scopes.append({"name": f"{a:g} mm" + (f" ({k + 1})" if [x for x in aps].count(a) > 1 else ""),
+        scopes.append({"name": f"{a:g} mm" + (f" ({k + 1})" if aps.count(a) > 1 else ""),
                        "aperture_mm": a, "obstruction": o})
     if not scopes:
         raise InputError("no telescope: give --aperture MM (and --obstruction), --scope NAME or --session FILE")

@@ -243,7 +243,8 @@ def _schedule_section(tel, scope_name, cand, site, seeing, window, minutes, limi
     if len(cand) == 0 or limit <= 0:
         return empty_schedule()
     pool = cand.sort_values("score", ascending=False, kind="stable").head(POOL_SIZE)
-    altaz_fn = lambda ra, dec, t: bridge.altaz(ra, dec, site, t)  # noqa: E731
+    altaz_fn = bridge.FastAltAz(pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), site,
+                                window[0] + (window[1] - window[0]) // 2)
     feas = _rejudge_fn(tel, pool, seeing, site.min_alt_deg) if rejudge else None
     sched = greedy_schedule(
         pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), pool["score"].to_numpy(float),

@@ -63,7 +63,8 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
     ra_deg, dec_deg, score : arrays over the candidates
     best_utc, set_utc : datetime64[ns] arrays (``NaT`` set time: does not set)
     start_utc, end_utc : numpy datetime64 bounds of the session
-    altaz_fn : ``altaz_fn(ra_deg, dec_deg, when_utc) -> (alt_deg, az_deg)``
+    altaz_fn : ``altaz_fn(idx, when_utc) -> (alt_deg, az_deg)`` for the candidates
+        at positions ``idx`` (geometric altitude)
     busy : list of (start, end) datetime64 intervals already taken
     feasible_fn : optional ``feasible_fn(idx, alt_deg, when_utc) -> bool array``
 
@@ -89,7 +90,7 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         return _empty()
     remaining = np.ones(len(ra), bool)
     rank_n = sc / max(float(np.nanmax(sc)), 1e-9)
-    prev = None  # (ra, dec) of the previous target
+    prev = None  # position of the previous target
     t = start
     while t + dur <= end and len(rows) < limit and remaining.any():
         clash = [b for b in busy if t < b[1] and t + dur > b[0]]
@@ -97,9 +98,9 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
             t = max(b[1] for b in clash)
             continue
         idx = np.flatnonzero(remaining)
-        alt0, az0 = altaz_fn(ra[idx], dec[idx], t)
-        altm, _ = altaz_fn(ra[idx], dec[idx], t + dur // 2)
-        alt1, _ = altaz_fn(ra[idx], dec[idx], t + dur)
+        alt0, az0 = altaz_fn(idx, t)
+        altm, _ = altaz_fn(idx, t + dur // 2)
+        alt1, _ = altaz_fn(idx, t + dur)
         ok = np.minimum(np.minimum(alt0, altm), alt1) >= min_alt_deg
         if feasible_fn is not None and ok.any():
             ok[ok] = np.asarray(feasible_fn(idx[ok], alt0[ok], t), bool)
@@ -113,7 +114,7 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         horizon_end = np.where(np.isnat(s) | (s <= t) | (s > end), end, s)
         left_h = np.maximum((horizon_end - (t + dur)).astype("int64") / _NS_PER_H, 0.0)
         if prev is not None:
-            palt, paz = altaz_fn(np.array([prev[0]]), np.array([prev[1]]), t)
+            palt, paz = altaz_fn(np.array([prev]), t)
             slew = _sep_deg(alt0, az0, palt[0], paz[0])
         else:
             slew = np.zeros(len(idx))
@@ -128,7 +129,7 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
                      "alt_start_deg": float(alt0[k]), "az_start_deg": float(az0[k]),
                      "slew_deg": float(slew[k]), "objective": float(obj[k])})
         remaining[c] = False
-        prev = (ra[c], dec[c])
+        prev = c
         t = t + dur
     if not rows:
         return _empty()

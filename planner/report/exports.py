@@ -189,7 +189,8 @@ def render_text(plan) -> str:
     for sp in plan.scopes:
         t = sp.telescope
         out.append("")
-        out.append(f"== {sp.name}: {t.get('aperture_mm', 0):g} mm, obstruction {float(t.get('obstruction', 0)):.2f}"
+        label = sp.name if sp.name == f"{float(t.get('aperture_mm', 0)):g} mm" else f"{sp.name}: {float(t.get('aperture_mm', 0)):g} mm"
+        out.append(f"== {label}, obstruction {float(t.get('obstruction', 0)):.2f}"
                    f" - {sp.n_split} pairs split tonight, {sp.n_challenge} near misses")
         sched = sp.schedule
         if sched is None or len(sched) == 0:
