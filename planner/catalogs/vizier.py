@@ -362,6 +362,38 @@ def _why(exc: Exception) -> str:
     return f"{name}: {first}" if first and len(first) <= 80 else name
 
 
+def fetch(store: bool = True) -> Catalog:
+    """Download B/wds/wds and the B/orb6 orbit table, check them, store them as a
+    new snapshot (the previous one stays if anything fails) and return the catalogue."""
+    _progress(f"downloading {WDS_TABLE} from CDS VizieR (all rows; about 20 MB)...")
+    wds_bytes = download(WDS_CATALOG)
+    wds_tables = parse_votable(wds_bytes, WDS_TABLE)
+    wname = WDS_TABLE if WDS_TABLE in wds_tables else max(wds_tables, key=lambda k: len(wds_tables[k]))
+    _progress(f"{len(wds_tables[wname])} rows of {wname}; downloading {ORB6_CATALOG}...")
+    orb_bytes = download(ORB6_CATALOG)
+    orb_tables = parse_votable(orb_bytes, ORB6_CATALOG)
+    oname = _choose_orb6(orb_tables)
+    counts = {"wds": len(wds_tables[wname]), "orb6": len(orb_tables[oname])}
+    for k, nmin in MIN_ROWS.items():
+        if counts[k] < nmin:
+            raise NetworkError(f"VizieR gave only {counts[k]} rows for {k.upper()} (expected at "
+                               f"least {nmin}); the download looks incomplete, snapshot not updated")
+    wds = wds_from_table(wds_tables[wname])
+    orb = orb6_from_table(orb_tables[oname])
+    missing = {"wds": _missing(wds_tables[wname], WDS_LABELS),
+               "orb6": _missing(orb_tables[oname], ORB6_LABELS)}
+    today = datetime.now(timezone.utc).date().isoformat()
+    meta = {"version": SNAPSHOT_VERSION, "source": f"CDS VizieR {wname} + {oname}",
+            "retrieved": today, "rows": counts, "tables": {"wds": wname, "orb6": oname},
+            "missing_fields": missing,
+            "files": {"wds": {"name": "wds.vot", "format": "votable", "table": wname},
+                      "orb6": {"name": "orb6.vot", "format": "votable", "table": oname}}}
+    if store:
+        write_snapshot(meta, {"wds.vot": wds_bytes, "orb6.vot": orb_bytes})
+    _progress(f"{counts['orb6']} orbits of {oname}; done")
+    return merge(wds, orb, source=meta["source"], retrieved=today)
+
+
 # -- snapshot store -----------------------------------------------------------------
 
 
