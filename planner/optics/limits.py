@@ -45,7 +45,7 @@ def _arr(x, name: str, lo: float | None = None, hi: float | None = None, allowed
     if hi is not None:
         bad |= a > hi
     if np.any(bad):
-        first = a[bad].flat[0] if a.ndim else float(a)
+        first = float(a[bad].flat[0]) if a.ndim else float(a)
         raise InputError(f"{name} = {first!r} is not allowed; use {allowed}")
     return a
 
@@ -240,13 +240,16 @@ def midpoint_dip(separation_lod, obstruction=0.0, delta_mag=0.0) -> float:
     s = float(separation_lod)
     x = np.linspace(-0.5, s + 0.5, 40001)
     prof = pair_profile(x, s, delta_mag, obstruction)
-    right = x >= s / 2 if delta_mag == 0 else x > 0
-    i2 = int(np.argmax(np.where(right & (x <= s + 0.5), prof, -np.inf)))
-    between = (x >= 0) & (x <= x[i2])
-    lo = prof[between].min()
-    if i2 == len(x) - 1 or prof[i2] <= lo:
+    half = s / 2
+    left = np.where(x <= half, prof, -np.inf)
+    right = np.where(x >= half, prof, -np.inf)
+    i1, i2 = int(np.argmax(left)), int(np.argmax(right))
+    # a maximum sitting on the midpoint (or the edge of the window) is not a separate peak
+    if x[i1] >= half - 1e-9 or x[i2] <= half + 1e-9 or i2 == len(x) - 1:
         return 0.0
-    return float(1.0 - lo / prof[i2])
+    lo = prof[i1:i2 + 1].min()
+    top = min(prof[i1], prof[i2])
+    return float(max(0.0, 1.0 - lo / top))
 
 
 def sparrow_lod(obstruction=0.0) -> float:

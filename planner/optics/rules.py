@@ -56,7 +56,7 @@ def lord_factor(delta_mag, n):
     """Lord's (1994) factor 1.033 x 10^((|dm| - 0.1)/n) for a user-given index n."""
     n = np.asarray(n, dtype=float)
     if np.any(~(n > 0)):
-        raise InputError(f"lord_n = {n!r} is not allowed; give Lord's performance index n as a positive number")
+        raise InputError(f"lord_n = {float(n[~(n > 0)].flat[0]) if n.ndim else float(n)!r} is not allowed; give Lord's performance index n as a positive number")
     return 1.033 * 10.0 ** ((np.abs(np.asarray(delta_mag, dtype=float)) - 0.1) / n)
 
 
@@ -124,11 +124,11 @@ def required_separation_arcsec(aperture_mm, delta_mag, obstruction=0.0, seeing_a
         raise InputError(f"model {model!r} is unknown; choose one of {', '.join(SEPARATION_MODELS)}")
     ap = np.asarray(aperture_mm, dtype=float)
     if np.any(~((ap >= 10) & (ap <= 10000))):
-        raise InputError(f"aperture_mm = {ap[~((ap >= 10) & (ap <= 10000))].flat[0]!r} is not allowed; "
+        raise InputError(f"aperture_mm = {float(ap[~((ap >= 10) & (ap <= 10000))].flat[0])!r} is not allowed; "
                          "use a clear aperture between 10 and 10000 mm")
     eps = np.asarray(obstruction, dtype=float)
     if np.any(~((eps >= 0) & (eps < 1))):
-        raise InputError(f"obstruction = {eps[~((eps >= 0) & (eps < 1))].flat[0]!r} is not allowed; "
+        raise InputError(f"obstruction = {float(eps[~((eps >= 0) & (eps < 1))].flat[0])!r} is not allowed; "
                          "use a diameter ratio from 0 up to (not including) 1")
     return SEPARATION_MODELS[key](ap, delta_mag, eps, seeing_arcsec, airmass, wavelength_nm, criterion,
                                   steady_fraction=steady_fraction, contrast=contrast,

@@ -30,7 +30,7 @@ def _nonneg(x, name, allowed):
     a = np.asarray(x, dtype=float)
     bad = ~(a >= 0)  # catches NaN too
     if np.any(bad & ~np.isnan(a)) or (name != "airmass" and np.any(np.isnan(a))):
-        first = a[bad].flat[0] if a.ndim else float(a)
+        first = float(a[bad].flat[0]) if a.ndim else float(a)
         raise InputError(f"{name} = {first!r} is not allowed; use {allowed}")
     return a
 
@@ -45,7 +45,7 @@ def seeing_fwhm_arcsec(seeing_arcsec, airmass=1.0, wavelength_nm=550.0):
     s = _nonneg(seeing_arcsec, "seeing_arcsec", "a seeing FWHM in arcsec, 0 or more (e.g. 2)")
     x = np.asarray(airmass, dtype=float)
     if np.any(x < 1.0):
-        raise InputError(f"airmass = {x[x < 1.0].flat[0]!r} is not allowed; airmass is 1 or more")
+        raise InputError(f"airmass = {float(x[x < 1.0].flat[0])!r} is not allowed; airmass is 1 or more")
     lam = np.asarray(wavelength_nm, dtype=float)
     return s * x**0.6 * (lam / SEEING_REF_NM) ** -0.2
 

@@ -203,30 +203,29 @@ def _cell_margins(r, prof, s, flux):
         (rho / 2)[:, None],
     ], axis=1)
     x = np.sort(x, axis=1)
-    # windows: primary [-0.3 s, min(rho/2, 0.6 s)], companion [max(rho/2, rho - 0.5 s), rho + 0.5 s]
-    l_hi = np.minimum(rho / 2, 0.6 * s)[:, None]
-    r_lo = np.maximum(rho / 2, rho - 0.5 * s)[:, None]
-    r_hi = (rho + 0.5 * s)[:, None]
     b1 = np.interp(np.abs(x), r, prof)
     b2 = np.interp(np.abs(x - rho[:, None]), r, prof)
     f = np.asarray(flux)[:, None, None]
     prof2 = b1[None] + f * b2[None]                          # (nf, nrho, nx)
+    # local maxima (interior samples higher than the left neighbour, not lower than the right)
+    peak = np.zeros(prof2.shape, dtype=bool)
+    peak[..., 1:-1] = (prof2[..., 1:-1] > prof2[..., :-2]) & (prof2[..., 1:-1] >= prof2[..., 2:])
     tol = 1e-9 * s
-    left = (x <= l_hi + tol)[None]
-    right = ((x >= r_lo - tol) & (x <= r_hi + tol))[None]
-    i1 = np.argmax(np.where(left, prof2, -np.inf), axis=2)
-    i2 = np.argmax(np.where(right, prof2, -np.inf), axis=2)
+    half = (rho / 2)[:, None]
+    # primary's maximum: the local maximum nearest to 0 on its side of the midpoint;
+    # companion's: the local maximum nearest to rho on its side (up to rho + 0.5 s)
+    prim_ok = peak & (x < half - tol)[None]
+    comp_ok = peak & ((x > half + tol) & (x <= rho[:, None] + 0.5 * s + tol))[None]
+    xb = np.broadcast_to(x, prof2.shape)
+    i1 = np.argmin(np.where(prim_ok, np.abs(xb), np.inf), axis=2)
+    i2 = np.argmin(np.where(comp_ok, np.abs(xb - rho[None, :, None]), np.inf), axis=2)
+    found = prim_ok.any(axis=2) & comp_ok.any(axis=2)
     idx = np.arange(x.shape[1])[None, None, :]
     between = (idx >= i1[..., None]) & (idx <= i2[..., None])
     lo = np.min(np.where(between, prof2, np.inf), axis=2)
     p1 = np.take_along_axis(prof2, i1[..., None], axis=2)[..., 0]
     p2 = np.take_along_axis(prof2, i2[..., None], axis=2)[..., 0]
-    xb = np.broadcast_to(x, prof2.shape)
-    xi1 = np.take_along_axis(xb, i1[..., None], axis=2)[..., 0]
-    xi2 = np.take_along_axis(xb, i2[..., None], axis=2)[..., 0]
-    interior = ((xi1 < l_hi[None, :, 0] - tol) & (xi2 > r_lo[None, :, 0] + tol)
-                & (xi2 < r_hi[None, :, 0] - tol))
-    separate = interior & (lo < np.minimum(p1, p2))
+    separate = found & (lo < np.minimum(p1, p2))
     dip = np.where(separate, 1.0 - lo / np.minimum(p1, p2), np.nan)
     # contrast against the primary's outer envelope
     env = np.maximum.accumulate(prof[::-1])[::-1]

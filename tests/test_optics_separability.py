@@ -1,0 +1,162 @@
+"""Validation of the physical separability model and its shipped table.
+
+What is checked, against what:
+* the Hankel-transform image of one star equals the closed-form (obstructed) Airy
+  pattern (Airy 1835; Born & Wolf 8.5) when there is no seeing;
+* an equal pair in perfect air reproduces the selected classical limit within 1 %
+  (Dawes 1867 115.8"/D; Rayleigh 1.2197 lambda/D; Sparrow 1916 0.9472 lambda/D;
+  methods-reference section 1) -- the calibration promised in docs/optics.md;
+* monotonicity in dm, seeing and airmass, and the stated effect of a central
+  obstruction (methods-reference 1, notes: helps equal pairs a little, hurts faint
+  companions);
+* the shipped table equals a fresh build of a few cells (so it cannot go stale);
+* the generalised-Sparrow figures of methods-reference 2 [D] are recovered by the
+  dip part of the criterion.
+"""
+
+import numpy as np
+import pytest
+
+from planner.errors import InputError
+from planner.optics import (
+    dawes_limit_arcsec,
+    rayleigh_limit_arcsec,
+    required_separation_arcsec,
+    sparrow_limit_arcsec,
+)
+from planner.optics.limits import airy_intensity
+from planner.optics import separability as sep
+
+
+@pytest.mark.parametrize("eps", [0.0, 0.33, 0.5])
+def test_star_image_without_seeing_is_the_airy_pattern(eps):
+    # closed form I/I0 = [2J1(v)/v - eps^2 2J1(eps v)/(eps v)]^2/(1-eps^2)^2 (methods-reference 1)
+    r = np.linspace(0, 8, 801)
+    np.testing.assert_allclose(sep.star_profile(r, eps, 0.0), airy_intensity(r, eps), atol=1e-5)
+
+
+@pytest.mark.parametrize("aperture", [60, 100, 203, 356])
+@pytest.mark.parametrize("criterion,classical", [
+    ("dawes", dawes_limit_arcsec), ("rayleigh", rayleigh_limit_arcsec), ("sparrow", sparrow_limit_arcsec)])
+def test_equal_pair_in_perfect_air_reproduces_the_criterion(aperture, criterion, classical):
+    got = required_separation_arcsec(aperture, 0.0, 0.0, 0.0, 1.0, 550, criterion)
+    assert got == pytest.approx(classical(aperture, 550), rel=0.01)
+
+
+def test_raw_search_already_within_one_percent_before_normalisation():
+    # the final normalisation divides by the table's (0, 0, 0) cell; the raw search must
+    # already sit within 1 % of the target, else the calibration would hide a bug
+    tab = sep.load_table()
+    for c, name in enumerate(tab["criteria"]):
+        target = sep.calibration_target_lod(str(name))
+        assert float(tab["raw"][c, 0, 0, 0]) == pytest.approx(target, rel=0.01)
+
+
+def test_calibration_dips():
+    # dip at the Dawes separation 3.2 %, at Rayleigh 26.5 % (methods-reference 1 [D])
+    assert sep.dip_threshold("dawes") == pytest.approx(0.032, abs=5e-4)
+    assert sep.dip_threshold("rayleigh") == pytest.approx(0.265, abs=5e-4)
+    assert sep.dip_threshold("sparrow") == 0.0
+
+
+def test_generalised_sparrow_from_methods_reference():
+    # methods-reference 2 [D] ("own computation"): the first distinct secondary maximum
+    # appears at 1.11 (dm 0.5), 1.18 (dm 1), 1.22 (dm 2) lambda/D for a clear aperture.
+    # Our dip-only search (delta = 0, no contrast requirement) on a fresh build:
+    # (for dm 2.5-3 the reference quotes 1.41-1.46; our dip-only search lets the companion
+    # show inside the dark ring there, and the contrast requirement decides -- docs/optics.md)
+    t = sep.build_table(dm_axis=[0.5, 1.0, 2.0], eps_axis=[0.0], seeing_axis=[0.0],
+                        criteria=("sparrow",), contrast=1e-9, monotone=False)
+    np.testing.assert_allclose(t["raw"][0, :, 0, 0], [1.11, 1.18, 1.22], atol=0.03)
+
+
+@pytest.mark.parametrize("criterion", ["dawes", "rayleigh", "sparrow"])
+@pytest.mark.parametrize("eps", [0.0, 0.2, 0.35, 0.5])
+def test_monotone_in_dm_seeing_and_airmass(criterion, eps):
+    dm = np.linspace(0, 12, 97)
+    seeing = np.array([0.0, 0.3, 0.8, 1.5, 2.5, 4.0, 8.0])
+    airmass = np.array([1.0, 1.3, 2.0, 3.0, 6.0])
+    D, S, X = np.meshgrid(dm, seeing, airmass, indexing="ij")
+    req = required_separation_arcsec(200, D, eps, S, X, 550, criterion)
+    assert np.all(np.diff(req, axis=0) >= -1e-12)
+    assert np.all(np.diff(req, axis=1) >= -1e-12)
+    assert np.all(np.diff(req, axis=2) >= -1e-12)
+    # beyond the table's seeing range the result keeps growing (linear extension)
+    big = required_separation_arcsec(1000, 2.0, eps, [3.0, 6.0, 12.0], 2.0, 550, criterion)
+    assert np.all(np.diff(big) > 0)
+
+
+def test_raw_table_monotone_fix_is_documented_size():
+    # the cumulative maxima only patch ring-structure wiggles; report how large they are
+    tab = sep.load_table()
+    ratio = tab["table"] / tab["raw"]
+    assert ratio.min() >= 1.0
+    assert ratio.max() < 1.5  # docs/optics.md states the largest correction (about 24 %)
+
+
+def test_obstruction_helps_equal_pairs_slightly():
+    # methods-reference 1 notes: obstruction narrows the core (helps equal pairs a little)
+    clear = required_separation_arcsec(200, 0.0, 0.0)
+    for eps in (0.2, 0.33, 0.5):
+        obstructed = required_separation_arcsec(200, 0.0, eps)
+        assert 0.85 * clear < obstructed < clear
+
+
+@pytest.mark.parametrize("seeing", [0.0, 0.3])
+def test_obstruction_hurts_faint_companions(seeing):
+    # methods-reference 1 notes: obstruction pushes light into the rings, hurting faint
+    # companions.  Checked for the obstructions of common reflectors and catadioptrics
+    # (0.25-0.5) and dm >= 3.  docs/optics.md lists the exceptions for eps <= 0.2.
+    for dm in (3.0, 3.5, 4.0, 5.0, 6.0, 7.0, 8.0, 10.0):
+        clear = required_separation_arcsec(200, dm, 0.0, seeing)
+        for eps in (0.25, 0.33, 0.4, 0.5):
+            assert required_separation_arcsec(200, dm, eps, seeing) > clear, (dm, eps)
+
+
+def test_seeing_dominates_large_apertures():
+    # with 2" seeing a 1 m aperture is no better than a 0.5 m one for an equal pair,
+    # while in perfect air it is twice as good (diffraction scales as 1/D)
+    a = required_separation_arcsec([500, 1000], 0.0, 0.0, 2.0)
+    assert a[1] == pytest.approx(a[0], rel=0.05)
+    b = required_separation_arcsec([500, 1000], 0.0, 0.0, 0.0)
+    assert b[0] / b[1] == pytest.approx(2.0, rel=1e-6)
+
+
+def test_shipped_table_matches_a_fresh_build():
+    tab = sep.load_table()
+    pick_dm = [0, 4, 12, 20, 30]
+    pick_eps = [0, 4]
+    pick_w = [0, 4, 10]
+    fresh = sep.build_table(dm_axis=tab["dm_axis"][pick_dm], eps_axis=tab["eps_axis"][pick_eps],
+                            seeing_axis=tab["seeing_axis"][pick_w], monotone=False)
+    shipped = tab["raw"][:, pick_dm][:, :, pick_eps][:, :, :, pick_w]
+    np.testing.assert_allclose(fresh["raw"], shipped, rtol=1e-4)
+    np.testing.assert_allclose(fresh["deltas"], tab["deltas"])
+
+
+def test_non_default_contrast_builds_into_the_cache(tmp_path, monkeypatch):
+    # a non-default contrast is built once into user_dir('cache'), with small axes here
+    monkeypatch.setattr(sep, "DM_AXIS", np.array([0.0, 3.0, 6.0]))
+    monkeypatch.setattr(sep, "EPS_AXIS", np.array([0.0, 0.5]))
+    monkeypatch.setattr(sep, "SEEING_AXIS", np.array([0.0, 2.0]))
+    monkeypatch.setattr(sep.build_table, "__defaults__",
+                        (sep.DM_AXIS, sep.EPS_AXIS, sep.SEEING_AXIS, sep.CRITERIA, sep.DEFAULT_CONTRAST, True))
+    sep._TABLES.pop(4.0, None)
+    a = required_separation_arcsec(200, 6.0, 0.0, contrast=4.0)
+    b = required_separation_arcsec(200, 6.0, 0.0)
+    assert a > b  # a stricter contrast asks for a wider pair
+    from planner.config.storage import user_dir
+
+    assert list(user_dir("cache").glob("separability_v*_c4.npz"))
+    sep._TABLES.pop(4.0, None)
+
+
+def test_input_errors():
+    with pytest.raises(InputError, match="aperture_mm = 5.0 is not allowed"):
+        required_separation_arcsec(5, 0.0)
+    with pytest.raises(InputError, match="obstruction = 1.0 is not allowed"):
+        required_separation_arcsec(100, 0.0, 1.0)
+    with pytest.raises(InputError, match="criterion 'foo' is unknown"):
+        required_separation_arcsec(100, 0.0, criterion="foo")
+    with pytest.raises(InputError, match="model 'bar' is unknown"):
+        required_separation_arcsec(100, 0.0, model="bar")
