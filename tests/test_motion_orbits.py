@@ -214,3 +214,11 @@ def test_precession_applied_from_2000_by_default():
     eq = orbit_positions(df, 2050.0, precession="equinox").theta_deg.iloc[0]
     assert (j2k - none) % 360 == pytest.approx(0.00557 * 50, abs=1e-9)   # formula, 50 yr
     assert (eq - none) % 360 == pytest.approx(0.00557 * 100, abs=1e-9)   # from 1950: 100 yr
+
+
+def test_epoch_array_of_wrong_length_is_an_input_error():
+    from planner.errors import InputError
+
+    df = pd.concat([frame(), frame()], ignore_index=True)
+    with pytest.raises(InputError, match="3 epochs given for 2 rows"):
+        orbit_positions(df, [2000.0, 2001.0, 2002.0])

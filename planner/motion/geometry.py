@@ -61,8 +61,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from planner.motion.epochs import to_epoch_yr
-from planner.motion.orbits import VISUAL_GRADES, orbit_positions
+from planner.motion.orbits import VISUAL_GRADES, _epochs_for_rows, orbit_positions
 
 #: Uncertainty floor per ORB6 grade, as a fraction of rho (theta: degrees of
 #: the same fraction in radians).  Common practice, no source.
@@ -299,8 +298,7 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
     pairs = catalog.pairs
     orbits = getattr(catalog, "orbits", None)
     n = len(pairs)
-    t = np.broadcast_to(np.asarray(to_epoch_yr(today_epoch_yr() if epoch_yr is None else epoch_yr),
-                                   dtype=float), (n,)).copy()
+    t = _epochs_for_rows(today_epoch_yr() if epoch_yr is None else epoch_yr, n)
 
     # -- measures: last / linear -------------------------------------------
     year_last = _num(pairs, "year_last")

@@ -171,6 +171,16 @@ def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool):
     return el, status, reason, use, (A, B, F, G), t0
 
 
+def _epochs_for_rows(epoch, n: int) -> np.ndarray:
+    t = np.asarray(to_epoch_yr(epoch), dtype=float)
+    try:
+        return np.broadcast_to(t, (n,)).copy()
+    except ValueError:
+        from planner.errors import InputError
+
+        raise InputError(f"{t.size} epochs given for {n} rows; give one epoch or one per row") from None
+
+
 def orbit_positions(orbits: pd.DataFrame, epoch, precession: str = "j2000",
                     astrometric: bool = False) -> pd.DataFrame:
     """Separation and position angle of each orbit at ``epoch``.
@@ -205,7 +215,7 @@ def orbit_positions(orbits: pd.DataFrame, epoch, precession: str = "j2000",
     NaN for incomplete orbits and, unless ``astrometric=True``, for grade 9.
     """
     n = len(orbits)
-    t = np.broadcast_to(np.asarray(to_epoch_yr(epoch), dtype=float), (n,)).copy()
+    t = _epochs_for_rows(epoch, n)
     el, status, reason, use, (A, B, F, G), t0 = _prepare(orbits, precession, astrometric)
     x, y = orbit_xy(el["period_yr"], el["t_peri_yr"], el["ecc"], A, B, F, G, t)
     x = np.where(use, x, np.nan)
