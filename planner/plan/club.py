@@ -16,7 +16,9 @@ their list):
    list among the other scopes that split the pair comfortably by more than
    ``slack`` pairs (default 2), the pair goes to that shorter list instead;
 5. a pair no scope splits comfortably goes to the scope with the largest
-   margin.
+   margin;
+6. near misses ("challenges", with ``--challenges``) that no scope splits go
+   to the scope with the largest margin on them.
 
 Each scope's share is then scheduled on its own, so every scope has a list
 through the night.
@@ -77,3 +79,16 @@ def share(judged: list, share_margin: float = 1.5, slack: int = 2):
     mat = mat.sort_values("best_score", ascending=False, kind="stable")
     assign = {n: list(base.index[assigned == k]) for k, n in enumerate(names)}
     return mat, assign
+
+
+def share_challenges(judged: list) -> dict:
+    """Near misses that no scope splits, each given to the scope with the largest margin on it."""
+    names = [j[0] for j in judged]
+    base = judged[0][3]
+    up = base["up"].to_numpy(bool)
+    verdicts = np.stack([j[3]["verdict"].astype(str).to_numpy() for j in judged], axis=1)
+    margins = np.stack([j[3]["margin"].to_numpy(float) for j in judged], axis=1)
+    chal = (verdicts == "challenge") & up[:, None] & ~((verdicts == "split").any(axis=1))[:, None]
+    pick = np.argmax(np.where(chal, np.nan_to_num(margins, nan=-1.0), -np.inf), axis=1)
+    has = chal.any(axis=1)
+    return {n: list(base.index[has & (pick == k)]) for k, n in enumerate(names)}

@@ -397,12 +397,13 @@ def plan_night(request: NightRequest, catalog=None) -> NightPlan:
     assign = None
     if len(judged) > 1:
         plan.matrix, assign = club.share(judged, share_margin=request.share_margin)
+        chal_assign = club.share_challenges(judged)
     for name, tel, sd, j in judged:
         split = j[(j["verdict"] == "split") & j["up"]]
         chal = j[(j["verdict"] == "challenge") & j["up"]]
         if assign is not None:
             split = split[split.index.isin(assign.get(name, []))]
-            chal = chal.iloc[0:0]
+            chal = chal[chal.index.isin(chal_assign.get(name, []))]
         main = _schedule_section(tel, name, split, site, seeing, window, minutes, int(request.limit), "plan")
         parts = [main]
         if request.challenges and len(chal):
