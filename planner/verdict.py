@@ -11,9 +11,9 @@ limit_arcsec       separation needed tonight (:func:`planner.optics.required_sep
 margin             rho / limit_arcsec
 chance             0-1, logistic in ln(margin) times a logistic in the
                    companion's magnitude margin -- **not fitted yet**
-verdict            'split', 'challenge' or 'no'
-reason_code        short key, see :data:`REASONS`
-reason             the same in words
+verdict            'split', 'challenge' or 'no' (categorical)
+reason_code        short key, see :data:`REASONS` (categorical)
+reason             the same in words (categorical)
 companion_visible  fainter star brighter than mag_limit (NA when magnitudes are unknown)
 mag_limit          faintest star visible (Schaefer 1990 by default), mag outside the atmosphere
 power_min          lowest power that shows the split to the eye
@@ -23,7 +23,8 @@ sep_px             separation in camera pixels (NaN without a camera)
 airy_radius_px     radius of the first dark ring in pixels (NaN without a camera)
 delta_mag          |mag2 - mag1| used (0 when unknown)
 blur_arcsec        blur FWHM used: steady_fraction x seeing at the airmass, with dispersion
-limit_best_arcsec  separation needed in perfect air (the aperture's floor for this dm)
+limit_best_arcsec  separation needed in perfect air at the zenith (the aperture's floor
+                   for this dm); computed only where margin < 0.9, NaN elsewhere
 =================  =========================================================
 
 Thresholds (assumptions of this project, to be revisited with observers' logs):
@@ -185,14 +186,20 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     mag2_arg = m_faint if model == "peterson1954" else None
     limit = required_separation_arcsec(ap, dm, eps, see, xcalc, lam, criterion, model=model,
                                        dispersion_arcsec=disp, mag2=mag2_arg, **common)
-    limit_best = required_separation_arcsec(ap, dm, eps, 0.0, 1.0, lam, criterion, model=model,
-                                            mag2=mag2_arg, **common)
-    limit_zenith = required_separation_arcsec(ap, dm, eps, see, 1.0, lam, criterion, model=model,
-                                              mag2=mag2_arg, **common)
-    limit, limit_best, limit_zenith = (np.broadcast_to(a, (n,)).astype(float)
-                                       for a in (limit, limit_best, limit_zenith))
+    limit = np.broadcast_to(limit, (n,)).astype(float)
     with np.errstate(invalid="ignore", divide="ignore"):
         margin = rho / limit
+    # the perfect-air and zenith limits only matter to explain a failure: compute them
+    # for the failing pairs only (keeps the whole-catalogue call fast)
+    limit_best = np.full(n, np.nan)
+    limit_zenith = np.full(n, np.nan)
+    need = ~(margin >= MARGIN_CHALLENGE)
+    if need.any():
+        m2n = None if mag2_arg is None else mag2_arg[need]
+        limit_best[need] = required_separation_arcsec(ap, dm[need], eps, 0.0, 1.0, lam, criterion, model=model,
+                                                      mag2=m2n, **common)
+        limit_zenith[need] = required_separation_arcsec(ap, dm[need], eps, see[need], 1.0, lam, criterion,
+                                                        model=model, mag2=m2n, **common)
 
     # -- magnification ------------------------------------------------------
     lod = float(lod_arcsec(ap, lam))
@@ -220,13 +227,15 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     if magnification is not None:
         mag_limit = limiting_magnitude(ap, sky, magnification, xcalc, model=mag_model, **mag_kw)
     else:
-        if "seeing_arcsec" in mag_kw:
-            mag_kw["seeing_arcsec"] = blur[:, None]
+        # best of three powers: the lowest that shows the split, the one where the
+        # magnified blur reaches 15' (Schaefer's seeing-disc factor starts), the highest useful
         lo_p = np.minimum(np.nan_to_num(power_min, nan=ap / eye_pupil_mm), power_max)
-        steps = np.linspace(0.0, 1.0, 8)[None, :]
-        cand = lo_p[:, None] * (power_max / lo_p)[:, None] ** steps
-        mags = limiting_magnitude(ap, sky[:, None], cand, xcalc[:, None], model=mag_model, **mag_kw)
-        mag_limit = np.max(np.broadcast_to(mags, cand.shape), axis=1)
+        with np.errstate(divide="ignore"):
+            knee = np.clip(450.0 / np.maximum(blur, 1e-9), lo_p, power_max)
+        mag_limit = np.full(n, -np.inf)
+        for cand in (lo_p, knee, power_max):
+            mag_limit = np.maximum(mag_limit, limiting_magnitude(ap, sky, cand, xcalc, model=mag_model,
+                                                                 **mag_kw))
     mag_limit = np.broadcast_to(mag_limit, (n,)).astype(float)
     mag_margin = mag_limit - m_faint           # NaN when the fainter magnitude is unknown
     visible = pd.array(np.where(np.isfinite(mag_margin), mag_margin >= 0, False), dtype="boolean")
@@ -257,14 +266,13 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     ]
     codes = ["no-separation", "not-up", "too-faint", "in-first-ring", "in-rings", "too-close",
              "too-low", "seeing-halo", "seeing", "near-limit", "faint-companion"]
-    reason_code = np.select(conds, codes, default="clean")
-    verdict = np.select([np.isin(reason_code, codes[:9]), np.isin(reason_code, codes[9:])],
-                        ["no", "challenge"], default="split")
-    reason = np.array([REASONS[c] for c in codes + ["clean"]], dtype=object)
-    lookup = {c: i for i, c in enumerate(codes + ["clean"])}
-    reason_txt = reason[np.vectorize(lookup.__getitem__, otypes=[int])(reason_code)] if n else reason[:0]
-    reason_txt = np.where(mags_known | ~has_rho, reason_txt,
-                          reason_txt.astype(str) + " (magnitudes unknown: judged as an equal pair)")
+    all_codes = codes + ["clean"]
+    code_idx = np.select(conds, list(range(len(codes))), default=len(codes))
+    verdict_idx = np.where(code_idx < 9, 0, np.where(code_idx < 11, 1, 2))
+    reason_words = [REASONS[c] for c in all_codes]
+    unknown = ~mags_known & has_rho
+    reason_idx = np.where(unknown, code_idx + len(all_codes), code_idx)
+    reason_words += [w + " (magnitudes unknown: judged as an equal pair)" for w in reason_words]
     chance = np.where(has_rho & up, chance, 0.0)
 
     # -- camera ----------------------------------------------------------------
@@ -280,9 +288,9 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
         "limit_arcsec": limit,
         "margin": margin,
         "chance": chance,
-        "verdict": pd.array(verdict, dtype="str"),
-        "reason_code": pd.array(reason_code, dtype="str"),
-        "reason": pd.array(reason_txt.astype(str), dtype="str"),
+        "verdict": pd.Categorical.from_codes(verdict_idx, categories=["no", "challenge", "split"]),
+        "reason_code": pd.Categorical.from_codes(code_idx, categories=all_codes),
+        "reason": pd.Categorical.from_codes(reason_idx, categories=reason_words),
         "companion_visible": visible,
         "mag_limit": mag_limit,
         "power_min": power_min,
