@@ -71,12 +71,13 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
         catalog = cat
         up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
         x = vis["airmass_best"].to_numpy(float)
-            sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
+        sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
+        disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
         cols = []
         for a in aps:
             tel = bridge.make_telescope({"aperture_mm": a, "obstruction": obstruction,
                                          "kind": base_scope.get("kind")}, f"{a:g} mm")
-            v = bridge.judge(tel, table, seeing, x, sky_mag=sky)
+            v = bridge.judge(tel, table, seeing, x, sky_mag=sky, dispersion_arcsec=disp)
             cols.append((v["verdict"].astype(str).to_numpy() == "split") & up)
         m = np.stack(cols, axis=1) if cols else np.zeros((len(table), 0), bool)
         m = pd.DataFrame(m, index=table.index)

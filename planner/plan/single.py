@@ -138,7 +138,9 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
     vis = bridge.visibility(np.array([ra]), np.array([dec]), site, night).reset_index(drop=True)
     x = vis["airmass_best"].to_numpy(float)
     sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
-    v = bridge.judge(tel, table.reset_index(drop=True), float(seeing_arcsec), x, sky_mag=sky).iloc[0]
+    disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
+    v = bridge.judge(tel, table.reset_index(drop=True), float(seeing_arcsec), x, sky_mag=sky,
+                     dispersion_arcsec=disp).iloc[0]
     g = table.iloc[0]
     vis0 = vis.iloc[0]
     up_ok = bool(vis0["observable"]) and float(vis0["up_dark_min"]) >= minutes
