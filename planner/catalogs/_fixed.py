@@ -62,13 +62,19 @@ def split_lines(data: bytes) -> list[bytes]:
     return lines
 
 
-def to_array(lines: list[bytes], width: int) -> np.ndarray:
-    """Pack ``lines`` into an ``(n, width)`` uint8 array, blank padded, cut at ``width``."""
+def to_array(lines: list[bytes], width: int, lengths: np.ndarray | None = None) -> np.ndarray:
+    """Pack ``lines`` into an ``(n, width)`` uint8 array, blank padded, cut at ``width``.
+
+    A NUL byte inside a line stays 0 (and is then reported as a control
+    character); only the padding after the end of each line becomes a blank."""
     n = len(lines)
     if n == 0:
         return np.zeros((0, width), dtype=np.uint8)
     arr = np.array(lines, dtype=f"S{width}").view(np.uint8).reshape(n, width).copy()
-    arr[arr == 0] = SPACE  # numpy pads short byte strings with NUL
+    if lengths is None:
+        lengths = np.fromiter(map(len, lines), dtype=np.int64, count=n)
+    pad = np.arange(width)[None, :] >= np.asarray(lengths)[:, None]
+    arr[pad] = SPACE
     return arr
 
 
@@ -183,7 +189,14 @@ def to_text(block: np.ndarray, split_code_number: bool = False,
         sub = np.take_along_axis(sub, order, axis=1)
         sub[np.take_along_axis(drop, order, axis=1)] = 0
         block[rows] = sub
-    return np.ascontiguousarray(block).view(f"S{w}").ravel().astype(f"U{w}")
+    return _decode(block, w)
+
+
+def _decode(block: np.ndarray, w: int) -> np.ndarray:
+    """Bytes rows to a unicode array; a byte outside ASCII (only in lines that are
+    rejected anyway) becomes '?' so the conversion cannot fail."""
+    block = np.ascontiguousarray(np.where(block > 126, np.uint8(63), block).astype(np.uint8))
+    return block.view(f"S{w}").ravel().astype(f"U{w}")
 
 
 def flag_chars(block: np.ndarray, keep) -> np.ndarray:
@@ -196,7 +209,7 @@ def flag_chars(block: np.ndarray, keep) -> np.ndarray:
     order = np.argsort(drop, axis=1, kind="stable")
     out = np.take_along_axis(block, order, axis=1)
     out[np.take_along_axis(drop, order, axis=1)] = 0
-    return np.ascontiguousarray(out).view(f"S{w}").ravel().astype(f"U{w}")
+    return _decode(out, w)
 
 
 def col(arr: np.ndarray, first: int, last: int) -> np.ndarray:
@@ -240,7 +253,9 @@ def sexagesimal(block: np.ndarray):
     sgn_ok = (block[:, 9] == PLUS) | (block[:, 9] == MINUS)
     ra = (h + m / 60.0 + s / 3600.0) * 15.0
     dec = np.where(block[:, 9] == MINUS, -1.0, 1.0) * (d + am / 60.0 + asec / 3600.0)
-    range_ok = (h < 24) & (m < 60) & (s < 60) & (d <= 90) & (am < 60) & (asec < 60)
+    parts = np.stack([h, m, s, d, am, asec])
+    range_ok = ((parts >= 0).all(axis=0) & (h < 24) & (m < 60) & (s < 60) & (am < 60)
+                & (asec < 60) & (np.abs(dec) <= 90))
     bad = ~blank & (b1 | b2 | b3 | b4 | b5 | b6 | ~sgn_ok | ~np.isfinite(ra) | ~np.isfinite(dec)
                     | ~range_ok)
     ra = np.where(blank | bad, np.nan, ra)

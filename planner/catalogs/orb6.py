@@ -150,8 +150,8 @@ def read_orb6(path) -> pd.DataFrame:
 def parse_orb6_lines(lines: list[bytes], name: str = "<lines>") -> pd.DataFrame:
     """Parse ORB6 orbit lines (bytes, without line ends); see :func:`read_orb6`."""
     n_all = len(lines)
-    arr = fx.to_array(lines, WIDTH)
     lengths = np.fromiter(map(len, lines), dtype=np.int64, count=n_all)
+    arr = fx.to_array(lines, WIDTH, lengths)
     line_no = np.arange(1, n_all + 1)
     blank = (arr == fx.SPACE).all(axis=1) & (lengths <= WIDTH) if n_all else np.zeros(0, bool)
     comment = arr[:, 0] == ord("#") if n_all else np.zeros(0, bool)

@@ -75,8 +75,8 @@ def read_wds(path) -> pd.DataFrame:
 def parse_wds_lines(lines: list[bytes], name: str = "<lines>", source: str = "wds") -> pd.DataFrame:
     """Parse WDS summary lines (bytes, without line ends); see :func:`read_wds`."""
     n_all = len(lines)
-    arr = fx.to_array(lines, WIDTH)
     lengths = np.fromiter(map(len, lines), dtype=np.int64, count=n_all)
+    arr = fx.to_array(lines, WIDTH, lengths)
     line_no = np.arange(1, n_all + 1)
     blank = (arr == fx.SPACE).all(axis=1) & (lengths <= WIDTH)
     comment = arr[:, 0] == ord("#") if n_all else np.zeros(0, bool)
