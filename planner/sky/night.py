@@ -204,21 +204,27 @@ class Night:
 
         Linear interpolation of the Moon's unit vector between samples that
         are at most a couple of hours apart: error well under 0.1 deg, ample
-        for sky brightness and Moon distance.
+        for sky brightness and Moon distance.  ``xyz`` holds the (not
+        renormalised) interpolated unit vector, ICRS axes.
         """
-        t = to_utc64(when).astype(np.int64).astype(float)
-        ts = self.moon_times_utc.astype(np.int64).astype(float)
+        t = to_utc64(when).astype(np.int64)
+        ts = self.moon_times_utc.astype(np.int64)
+        # one bracket search, reused for every interpolated quantity
+        j = np.clip(np.searchsorted(ts, t, side="right") - 1, 0, ts.size - 2)
+        w = np.clip((t - ts[j]) / (ts[j + 1] - ts[j]), 0.0, 1.0)
+
+        def lerp(v):
+            return v[j] + w * (v[j + 1] - v[j])
+
         ra, dec = np.radians(self.moon_ra_deg), np.radians(self.moon_dec_deg)
-        xyz = [np.cos(dec) * np.cos(ra), np.cos(dec) * np.sin(ra), np.sin(dec)]
-        x, y, z = (np.interp(t, ts, c) for c in xyz)
-        ra_i = np.degrees(np.arctan2(y, x)) % 360.0
-        dec_i = np.degrees(np.arctan2(z, np.hypot(x, y)))
+        x, y, z = (lerp(c) for c in (np.cos(dec) * np.cos(ra), np.cos(dec) * np.sin(ra), np.sin(dec)))
         return {
-            "ra_deg": ra_i,
-            "dec_deg": dec_i,
-            "alt_deg": np.interp(t, ts, self.moon_alt_deg),
-            "illum": np.interp(t, ts, self.moon_illum),
-            "phase_angle_deg": np.interp(t, ts, self.moon_phase_angle_deg),
+            "ra_deg": np.degrees(np.arctan2(y, x)) % 360.0,
+            "dec_deg": np.degrees(np.arctan2(z, np.hypot(x, y))),
+            "alt_deg": lerp(self.moon_alt_deg),
+            "illum": lerp(self.moon_illum),
+            "phase_angle_deg": lerp(self.moon_phase_angle_deg),
+            "xyz": (x, y, z),
         }
 
     def moon_sep_deg(self, ra_deg, dec_deg, when=None) -> np.ndarray:

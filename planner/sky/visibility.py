@@ -3,10 +3,11 @@
 Method (see docs/sky.md for the derivation and accuracy):
 
 1. **Apparent place once per night.**  One ERFA context (``erfa.apco13``) at
-   the middle of the dark window; one vectorised ``erfa.atciq`` call turns
-   every ICRS J2000 position into its CIRS place (light deflection, annual
-   aberration, precession-nutation).  Over a night these change by well
-   under an arcsecond.
+   the middle of the dark window; its aberration velocity and
+   bias-precession-nutation matrix are applied to every ICRS J2000 position
+   in a few numpy array operations (``erfa.atciq`` without the Sun's light
+   deflection, < 0.03" more than 20 deg from the Sun).  Over a night these change by
+   well under an arcsecond.
 2. **Hour angle is linear in time.**  H(t) = ERA(t) + longitude - RA_cirs,
    with the Earth rotation angle advancing at 2 pi x 1.00273781191135448 rad
    per UT1 day (IERS Conventions 2010).  Polar motion (< 0.5") and diurnal
@@ -43,7 +44,7 @@ import numpy as np
 from planner.errors import InputError
 from planner.sky import atmosphere as atm
 from planner.sky._astrometry import OMEGA_RAD_S, altaz_rad, astrom_at, to_utc64, validate_radec
-from planner.sky.night import Night, _sep_deg, sun_alt_deg
+from planner.sky.night import Night, sun_alt_deg
 from planner.sky.site import Site
 
 __all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place"]
@@ -72,11 +73,40 @@ def apparent_place(ra_deg, dec_deg, site: Site, when_utc):
     rotation angle (ERA + longitude, rad) and ``astrom["sphi"]``,
     ``astrom["cphi"]`` the sine and cosine of the site latitude.
     """
-    import erfa
-
     ast = astrom_at(np.asarray(when_utc, dtype="datetime64[ns]"), site.lat_deg, site.lon_deg, site.elevation_m)
-    ri, di = erfa.atciq(np.radians(ra_deg), np.radians(dec_deg), 0.0, 0.0, 0.0, 0.0, ast)
+    ri, di, _p = _cirs_fast(np.radians(ra_deg), np.radians(dec_deg), ast)
     return ri, di, ast
+
+
+def _unit(ra_rad, dec_rad):
+    cd = np.cos(dec_rad)
+    return np.cos(ra_rad) * cd, np.sin(ra_rad) * cd, np.sin(dec_rad)
+
+
+def _cirs_fast(ra_rad, dec_rad, ast):
+    """ICRS -> CIRS with one ERFA context, in plain numpy (what ``erfa.atciq`` does, minus light
+    deflection by the Sun, which is below 0.03" more than 20 deg from the Sun).
+
+    Annual aberration: the relativistic formula of ERFA ``eraAb`` (IERS Conventions 2010 /
+    Explanatory Supplement 1992, eq. 3.252-3), observer velocity ``ast["v"]`` (units of c),
+    ``ast["bm1"]`` = sqrt(1 - v^2); then the bias-precession-nutation matrix ``ast["bpn"]``.
+    Returns (ri, di, (x, y, z) ICRS unit vectors).
+    """
+    x, y, z = _unit(ra_rad, dec_rad)
+    v = np.asarray(ast["v"], dtype=float).reshape(3)
+    bm1 = float(ast["bm1"])
+    pdv = x * v[0] + y * v[1] + z * v[2]
+    w1 = 1.0 + pdv / (1.0 + bm1)
+    px, py, pz = bm1 * x + w1 * v[0], bm1 * y + w1 * v[1], bm1 * z + w1 * v[2]
+    r = np.sqrt(px * px + py * py + pz * pz)
+    px, py, pz = px / r, py / r, pz / r
+    m = np.asarray(ast["bpn"], dtype=float).reshape(3, 3)
+    cx = m[0, 0] * px + m[0, 1] * py + m[0, 2] * pz
+    cy = m[1, 0] * px + m[1, 1] * py + m[1, 2] * pz
+    cz = m[2, 0] * px + m[2, 1] * py + m[2, 2] * pz
+    ri = np.arctan2(cy, cx)
+    di = np.arctan2(cz, np.hypot(cx, cy))
+    return ri, di, (x, y, z)
 
 
 def alt_az_at(ra_deg, dec_deg, site: Site, when_utc, refracted: bool = False):
@@ -172,7 +202,8 @@ def visibility(ra_deg, dec_deg, site: Site, night: Night, *, airmass_model: str 
         a = b = 0.0
 
     # 1. apparent place at the middle of the window (one erfa call)
-    ri, di, ast = apparent_place(ra, dec, site, t_mid)
+    ast = astrom_at(np.asarray(t_mid, dtype="datetime64[ns]"), site.lat_deg, site.lon_deg, site.elevation_m)
+    ri, di, p_icrs = _cirs_fast(np.radians(ra), np.radians(dec), ast)
     sphi, cphi, eral = float(ast["sphi"]), float(ast["cphi"]), float(ast["eral"])
     sd, cd = np.sin(di), np.cos(di)
     ha_mid = _wrap_pi(eral - ri)
@@ -234,7 +265,11 @@ def visibility(ra_deg, dec_deg, site: Site, night: Night, *, airmass_model: str 
     best64 = _to_t64(t_mid, best_s)
     when_moon = np.where(np.isnat(best64), t_mid, best64)
     moon = night.moon_at(when_moon)
-    moon_sep = _sep_deg(ra, dec, moon["ra_deg"], moon["dec_deg"])
+    mx, my, mz = moon["xyz"]
+    px, py, pz = p_icrs
+    dot = px * mx + py * my + pz * mz
+    cross = np.sqrt((py * mz - pz * my) ** 2 + (pz * mx - px * mz) ** 2 + (px * my - py * mx) ** 2)
+    moon_sep = np.degrees(np.arctan2(cross, dot))
     sky = _sky_mag(site, night, best64, alt_true_deg, moon, moon_sep)
 
     df = pd.DataFrame({
