@@ -50,3 +50,8 @@ def test_frozen():
     t = Telescope(100)
     with pytest.raises(AttributeError):
         t.aperture_mm = 200
+
+
+def test_kind_aliases():
+    assert Telescope(254, 0.2, kind="Dobsonian").kind == "newtonian"
+    assert Telescope(203, 0.33, kind="schmidt-cassegrain").kind == "sct"

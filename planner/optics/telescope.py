@@ -9,6 +9,15 @@ from dataclasses import dataclass, field
 from planner.errors import InputError
 
 KINDS = ("refractor", "newtonian", "sct", "maksutov", "cassegrain", "binocular", "other")
+#: other spellings accepted for ``kind``
+KIND_ALIASES = {
+    "reflector": "newtonian", "dobsonian": "newtonian", "dob": "newtonian", "newton": "newtonian",
+    "schmidt-cassegrain": "sct", "schmidt cassegrain": "sct", "edgehd": "sct",
+    "mak": "maksutov", "maksutov-cassegrain": "maksutov", "mct": "maksutov",
+    "rc": "cassegrain", "ritchey-chretien": "cassegrain", "classical cassegrain": "cassegrain",
+    "apo": "refractor", "achromat": "refractor", "lens": "refractor",
+    "binoculars": "binocular", "catadioptric": "other",
+}
 
 
 @dataclass(frozen=True)
@@ -63,6 +72,7 @@ class Telescope:
                 raise InputError(f"focal_length_mm = {f:g} is not allowed; use a focal length in mm greater than 0")
             object.__setattr__(self, "focal_length_mm", f)
         kind = str(self.kind).strip().lower()
+        kind = KIND_ALIASES.get(kind, kind)
         if kind not in KINDS:
             raise InputError(f"kind = {self.kind!r} is unknown; choose one of {', '.join(KINDS)}")
         object.__setattr__(self, "kind", kind)
