@@ -160,3 +160,25 @@ def test_input_errors():
         required_separation_arcsec(100, 0.0, criterion="foo")
     with pytest.raises(InputError, match="model 'bar' is unknown"):
         required_separation_arcsec(100, 0.0, model="bar")
+
+
+def test_missing_values_propagate_as_nan_only_where_missing():
+    got = required_separation_arcsec(200, [np.nan, 1.0, 1.0], 0.0, 1.0, [1.0, 1.0, np.nan])
+    assert np.isnan(got[0]) and np.isfinite(got[1]) and np.isnan(got[2])
+    # the sign of dm does not matter (m1 and m2 may come in either order)
+    a, b = required_separation_arcsec(200, [-2.0, 2.0], 0.0, 1.0)
+    assert a == b
+
+
+def test_random_inputs_are_monotone():
+    # property check on random points (not only on a grid): more dm, seeing or airmass
+    # never asks for a smaller separation
+    rng = np.random.default_rng(7)
+    n = 20000
+    dm, see, x = rng.uniform(0, 13, n), rng.uniform(0, 6, n), rng.uniform(1, 5, n)
+    eps = rng.choice([0.0, 0.15, 0.3, 0.45], n)
+    ap = rng.uniform(50, 600, n)
+    base = required_separation_arcsec(ap, dm, eps, see, x)
+    for bump in ((0.3, 0, 0), (0, 0.4, 0), (0, 0, 0.5)):
+        more = required_separation_arcsec(ap, dm + bump[0], eps, see + bump[1], x + bump[2])
+        assert np.all(more >= base - 1e-12)

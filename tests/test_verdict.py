@@ -143,3 +143,14 @@ def test_bad_inputs():
         judge([1.0], 5, 6, [1.0], Telescope(100), 1.0, criterion="abbe")
     with pytest.raises(InputError, match="seeing_arcsec"):
         judge([1.0], 5, 6, [1.0], Telescope(100), -1.0)
+
+
+def test_astropy_quantities_at_the_edge():
+    import astropy.units as u
+
+    t = Telescope(150)
+    a = judge([2.0, 4.0] * u.arcsec, [5, 5], [6, 8], [1.2, 1.5], t, 1.5 * u.arcsec)
+    b = judge(np.array([2000.0, 4000.0]) * u.mas, [5, 5], [6, 8], [1.2, 1.5], t, 1.5)
+    c = judge([2.0, 4.0], [5, 5], [6, 8], [1.2, 1.5], t, 1.5)
+    pd.testing.assert_frame_equal(a, c)
+    pd.testing.assert_frame_equal(b, c)

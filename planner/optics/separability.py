@@ -368,7 +368,8 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
         tab = data["table"][c].astype(float)
         norm = tab / tab[0, 0, 0]
         data["_interp"][str(name)] = RegularGridInterpolator(
-            (data["dm_axis"], data["eps_axis"], data["seeing_axis"]), norm, method="linear")
+            (data["dm_axis"], data["eps_axis"], data["seeing_axis"]), norm, method="linear",
+            bounds_error=False, fill_value=np.nan)
     _TABLES[key] = data
     return data
 
