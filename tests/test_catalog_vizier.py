@@ -195,6 +195,18 @@ def test_damaged_pointer_is_quarantined(recorded, capsys):
     assert list(vizier.snapshot_root().glob("current.json.corrupt-*"))
 
 
+def test_damaged_snapshot_file_falls_back(recorded, capsys):
+    vizier.fetch()
+    d = vizier.snapshot_root() / vizier.current_snapshot()["directory"]
+    data = (d / "orb6.vot").read_bytes()
+    (d / "orb6.vot").write_bytes(data[: len(data) // 3])
+    capsys.readouterr()
+    cat = load_catalog("vizier")
+    err = capsys.readouterr().err
+    assert cat.source.startswith("bundled sample")
+    assert "orb6.vot cannot be read" in err and err.count("\n") == 1
+
+
 def test_import_local_files_into_snapshot(tmp_path):
     stack, wds_path, orb_path = sample_paths()
     with stack:

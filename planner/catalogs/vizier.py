@@ -458,10 +458,14 @@ def load_snapshot() -> Catalog:
         path = d / info["name"]
         if not path.exists():
             raise CatalogError(f"VizieR snapshot file {path} is missing; fetch or import again")
-        if info["format"] == "votable":
-            df = cached_read(path, f"vot-{kind}", _read_vot(kind))
-        else:
-            df = cached_read(path, kind, read_wds if kind == "wds" else read_orb6)
+        try:
+            if info["format"] == "votable":
+                df = cached_read(path, f"vot-{kind}", _read_vot(kind))
+            else:
+                df = cached_read(path, kind, read_wds if kind == "wds" else read_orb6)
+        except (NetworkError, CatalogError) as exc:
+            raise CatalogError(f"the VizieR snapshot file {path.name} cannot be read ({exc}); "
+                               "fetch or import again") from None
         parts[kind] = df
         problems += [(info["name"], ln, why) for ln, why in df.attrs.get("problems", [])]
     return merge(parts.get("wds"), parts.get("orb6"), source=meta["source"],
