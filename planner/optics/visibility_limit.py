@@ -108,9 +108,10 @@ def schaefer1990(aperture_mm, sky_mag_arcsec2=21.0, magnification=None, airmass=
     return _mag(i * factors)
 
 
-def _simple(n):
+def _simple(n, source):
     def law(aperture_mm, *args, **kw):
         return n + 5.0 * np.log10(np.asarray(aperture_mm, dtype=float) / MM_PER_INCH)
+    law.__doc__ = f"m_lim = {n} + 5 log10 D[inch] ({source}); aperture only."
     return law
 
 
@@ -129,9 +130,9 @@ def great_soviet_encyclopedia(aperture_mm, sky_mag_arcsec2=21.0, magnification=N
 #: Limiting-magnitude models by name.  The simple laws take only the aperture.
 MAG_LIMIT_MODELS = {
     "schaefer1990": schaefer1990,
-    "dimitroff-baker1945": _simple(8.8),   # N = 8.8, Dimitroff & Baker 1945 (via Schaefer 1990, eq. 1)
-    "peterson1954": _simple(9.1),          # 9.1 + 5 log D[in], Peterson 1954
-    "sidgwick1971": _simple(10.7),         # N = 10.7, Sidgwick 1971 (via Schaefer 1990, eq. 1)
+    "dimitroff-baker1945": _simple(8.8, "Dimitroff & Baker 1945, via Schaefer 1990 eq. 1"),
+    "peterson1954": _simple(9.1, "Peterson 1954, Sky & Telescope"),
+    "sidgwick1971": _simple(10.7, "Sidgwick 1971, via Schaefer 1990 eq. 1"),
     "stevenson": stevenson,
     "soviet-encyclopedia": great_soviet_encyclopedia,
 }
