@@ -139,7 +139,7 @@ def moon_position(site: Site, when):
     }
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Night:
     """Sun and Moon for the night of ``local_date`` at ``site`` (all instants UTC datetime64[ns]).
 

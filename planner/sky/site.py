@@ -141,7 +141,7 @@ class Site:
     #: V-band extinction coefficient (mag/airmass): 0.2 "good" (Schaefer 1985,
     #: quoted by Green 1992, ICQ 14, 55).
     extinction_k: float = 0.2
-    _zone: object = field(default=None, repr=False, compare=False)
+    _zone: object = field(default=None, init=False, repr=False, compare=False)
 
     def __post_init__(self):
         set_ = object.__setattr__
