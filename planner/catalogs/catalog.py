@@ -231,9 +231,23 @@ def _norm(s) -> str:
     return re.sub(r"[\s,\-]", "", str(s)).upper()
 
 
-def _names(pairs: pd.DataFrame) -> tuple[pd.Series, pd.Series]:
-    disc = pairs["discoverer"].astype(str).map(_norm)
-    full = disc + pairs["components"].astype(str).map(_norm)
+def _norm_series(s: pd.Series) -> pd.Series:
+    return s.astype(str).str.replace(r"[\s,\-]", "", regex=True).str.upper()
+
+
+def _names(pairs: pd.DataFrame, catalog=None) -> tuple[pd.Series, pd.Series]:
+    """Normalised designations (without and with components), computed once per
+    pair table and kept on the catalogue object for later look-ups."""
+    cached = getattr(catalog, "_name_keys", None) if catalog is not None else None
+    if cached is not None and cached[0] is pairs:
+        return cached[1], cached[2]
+    disc = _norm_series(pairs["discoverer"])
+    full = disc + _norm_series(pairs["components"])
+    if catalog is not None:
+        try:
+            object.__setattr__(catalog, "_name_keys", (pairs, disc, full))
+        except Exception:
+            pass
     return disc, full
 
 
@@ -280,7 +294,7 @@ def find_pair(catalog: Catalog, query: str):
         elif len(sel):
             return _best_of(pairs, sel)
     else:
-        disc, full = _names(pairs)
+        disc, full = _names(pairs, catalog)
         hit = pairs.index[(full == qn).to_numpy()]
         if len(hit):
             return _best_of(pairs, hit)
@@ -297,23 +311,44 @@ def find_pair(catalog: Catalog, query: str):
     raise UnknownPairError(q, suggest(catalog, q))
 
 
-def suggest(catalog: Catalog, query: str, n: int = 5) -> list[str]:
-    """Close matches for ``query`` among WDS ids and designations (difflib)."""
+def _suggest_pool(catalog: Catalog):
+    """Normalised name -> shown label, and the WDS ids; built once per pair table."""
     pairs = catalog.pairs
-    disc, full = _names(pairs)
-    labels = (pairs["discoverer"].astype(str) + np.where(pairs["components"].astype(str) != "",
-                                                         " " + pairs["components"].astype(str), ""))
-    cand: dict[str, str] = {}
-    for key, lab in zip(full.tolist(), labels.tolist()):
+    cached = getattr(catalog, "_suggest_keys", None)
+    if cached is not None and cached[0] is pairs:
+        return cached[1], cached[2]
+    disc, full = _names(pairs, catalog)
+    comp = pairs["components"].astype(str)
+    labels = pairs["discoverer"].astype(str) + np.where(comp != "", " " + comp, "")
+    cand = dict(zip(full.tolist()[::-1], labels.tolist()[::-1]))  # first occurrence wins
+    for key, lab in zip(disc.tolist()[::-1], pairs["discoverer"].astype(str).tolist()[::-1]):
         cand.setdefault(key, lab)
-    for key, lab in zip(disc.tolist(), pairs["discoverer"].astype(str).tolist()):
-        cand.setdefault(key, lab)
+    ids = pairs["wds_id"].astype(str).unique().tolist()
+    try:
+        object.__setattr__(catalog, "_suggest_keys", (pairs, cand, ids))
+    except Exception:
+        pass
+    return cand, ids
+
+
+def suggest(catalog: Catalog, query: str, n: int = 5) -> list[str]:
+    """Close matches for ``query`` among WDS ids and designations (difflib).
+
+    On a large catalogue only names that share the query's first two (else first)
+    characters are compared, which keeps an unknown name quick to report."""
+    cand, ids = _suggest_pool(catalog)
     q = str(query).strip()
     out = []
     if re.match(r"^\d", q):
-        ids = pairs["wds_id"].astype(str).unique().tolist()
-        out += difflib.get_close_matches(q, ids, n=n, cutoff=0.6)
-    keys = difflib.get_close_matches(_norm(q), list(cand), n=n, cutoff=0.6)
+        pool_ids = ids
+        if len(ids) > 5000:
+            pool_ids = [i for i in ids if i[:3] == q[:3]] or [i for i in ids if i[:2] == q[:2]]
+        out += difflib.get_close_matches(q, pool_ids, n=n, cutoff=0.6)
+    qn = _norm(q)
+    pool = list(cand)
+    if len(pool) > 5000:
+        pool = [k for k in pool if k[:2] == qn[:2]] or [k for k in pool if k[:1] == qn[:1]][:20000]
+    keys = difflib.get_close_matches(qn, pool, n=n, cutoff=0.6)
     out += [cand[k] for k in keys]
     seen, res = set(), []
     for s in out:
