@@ -31,6 +31,7 @@ Method (see docs/sky.md for the derivation and accuracy):
    73) instants spread evenly over the window, with every clear/hidden change
    between two of them pinned down by 16 bisections -- only for targets that
    get above the minimum altitude at all, in chunks (bounded memory).
+   The limit is looked up by azimuth in a 0.01-deg table of true altitudes.
    Obstructions narrower than a step can be missed.  If the analytic best
    instant is hidden, the highest clear instant found is taken instead.
 
@@ -296,6 +297,32 @@ def _az_at_alt(sd, cd, sphi, cphi, H):
     return np.degrees(az)
 
 
+class _TrueLimit:
+    """Lookup table of the site's limit as a TRUE altitude, by azimuth (0.01 deg steps).
+
+    limit(az) = max(min_alt, horizon profile) is an apparent altitude; it is
+    converted once per call of :func:`visibility` with Bennett (1982), and
+    stored as its sine so that "clear" tests need no arcsin.  Nearest-step
+    lookup: altitude error <= 0.005 deg x the profile's slope (deg/deg).
+    """
+
+    N = 36_000
+
+    def __init__(self, site: Site):
+        az = (np.arange(self.N) + 0.5) * (360.0 / self.N)
+        lim_app = site.limit_alt_deg(az)
+        self.sin_lim = np.sin(np.radians(atm.true_from_apparent_deg(lim_app, site.pressure_hpa,
+                                                                    site.temperature_c)))
+
+    def clear(self, sd, cd, sphi, cphi, ha):
+        """(clear?, sin(alt), az rad) for hour angle(s) ``ha``; broadcast."""
+        ch = np.cos(ha)
+        salt = sphi * sd + cphi * cd * ch
+        az = np.arctan2(-cd * np.sin(ha), sd * cphi - cd * ch * sphi)
+        k = (az * (self.N / TWO_PI)).astype(np.int64) % self.N
+        return salt >= self.sin_lim[k], salt, az
+
+
 def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, scan: int = 48, bisect: int = 16):
     """Semi-arc from transit to the first crossing of max(min_alt, horizon profile), rad.
 
@@ -307,8 +334,8 @@ def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, scan: int = 48
     (H0 / scan) can be missed.  Targets hidden already at transit get 0;
     targets clear all the way to H0 keep H0.
     """
-    P, T = site.pressure_hpa, site.temperature_c
     sign = -1.0 if rising else 1.0
+    table = _TrueLimit(site)
 
     out = np.array(H0, dtype=float, copy=True)
     cand = np.flatnonzero(H0 > 0.0)
@@ -316,9 +343,7 @@ def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, scan: int = 48
         idx = cand[s0:s0 + _CHUNK]
         f = np.linspace(0.0, 1.0, scan + 1)
         Hs = H0[idx, None] * f[None, :]
-        alt, az = _alt_az_fast(sd[idx, None], cd[idx, None], sphi, cphi, sign * Hs)
-        lim = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az)), P, T)
-        ok = np.degrees(alt) >= lim
+        ok, _s, _a = table.clear(sd[idx, None], cd[idx, None], sphi, cphi, sign * Hs)
         circumpolar = H0[idx] >= np.pi
         ok[~circumpolar, -1] = False  # at H0 the star is at min_alt: count it as hidden
         never_hidden = ok.all(axis=1)  # circumpolar and clear of the profile all round
@@ -329,9 +354,7 @@ def _h0_profile(sd, cd, sphi, cphi, site: Site, H0, rising: bool, scan: int = 48
         sd_i, cd_i = sd[idx], cd[idx]
         for _ in range(bisect):
             mid = 0.5 * (lo + hi)
-            alt_m, az_m = _alt_az_fast(sd_i, cd_i, sphi, cphi, sign * mid)
-            lim_m = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az_m)), P, T)
-            c = np.degrees(alt_m) >= lim_m
+            c, _s, _a = table.clear(sd_i, cd_i, sphi, cphi, sign * mid)
             lo = np.where(c, mid, lo)
             hi = np.where(c, hi, mid)
         res = 0.5 * (lo + hi)
@@ -357,10 +380,11 @@ def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t,
     g = a + (b - a) * np.arange(m + 1) / m
     step = (b - a) / m
 
+    table = _TrueLimit(site)
+
     def clear_at(rows, t):
-        alt, az = _alt_az_fast(sd[rows], cd[rows], sphi, cphi, ha_mid[rows] + OMEGA_RAD_S * t)
-        lim = atm.true_from_apparent_deg(site.limit_alt_deg(np.degrees(az)), P, T)
-        return np.degrees(alt) >= lim, alt, az
+        # altitudes are compared and ranked as sines (monotonic); converted once at the end
+        return table.clear(sd[rows], cd[rows], sphi, cphi, ha_mid[rows] + OMEGA_RAD_S * t)
 
     for s in range(0, cand.size, _CHUNK):
         idx = cand[s:s + _CHUNK]
@@ -402,8 +426,8 @@ def _profile_sampling(sd, cd, sphi, cphi, ha_mid, a, b, site, up, best_s, alt_t,
         hidden = (np.degrees(alt_t[idx]) < lim_best) & np.isfinite(best_alt)
         sel = idx[hidden]
         best_s[sel] = best_t[hidden]
-        alt_t[sel] = best_alt[hidden]
-        az_t[sel] = best_az[hidden]
+        alt_t[sel] = np.arcsin(np.clip(best_alt[hidden], -1.0, 1.0))
+        az_t[sel] = np.mod(best_az[hidden], TWO_PI)
     return up, observable, best_s, alt_t, az_t
 
 
