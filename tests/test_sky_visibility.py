@@ -235,3 +235,36 @@ def test_series_index_is_kept_and_bad_input():
         sky.visibility(ra, ra, site, night, airmass_model="nope")
     with pytest.raises(InputError, match="declination 120.0 is out of range"):
         sky.visibility([1.0], [120.0], site, night)
+
+
+def test_sky_brightness_full_moon_and_twilight():
+    """Full Moon (Paris, 23 Dec 2026, 100 % lit, up all night): Krisciunas & Schaefer (1991) scatter
+    makes the sky near the Moon brighter than 90 deg away -- compare targets 10 and 90 deg from the
+    Moon at the same altitude (transit, same declination).  Moonless new-Moon night: a target whose
+    best time is a window edge (nautical twilight, Sun at -12 deg) gets a brighter sky than the
+    same target at transit in full darkness (twilight model: approximation, from memory)."""
+    site = sky.Site(48.85, 2.35, 35, tz="Europe/Paris")
+    full = sky.night_for(site, "2026-12-23")
+    assert full.moon_illum.min() > 0.99
+    m = full.moon_at(full.middle_utc)
+    ra_m, dec_m = float(m["ra_deg"]), float(m["dec_deg"])
+    # two targets on the Moon's declination, 10 and 90 deg of RA away (separation ~ RA x cos dec)
+    ra = np.array([ra_m + 10.0 / np.cos(np.radians(dec_m)), ra_m + 90.0]) % 360.0
+    dec = np.array([dec_m, dec_m])
+    vis = sky.visibility(ra, dec, site, full)
+    assert vis["moon_sep_deg"].iloc[0] < 20 and vis["moon_sep_deg"].iloc[1] > 60
+    assert vis["sky_mag_arcsec2"].iloc[0] < vis["sky_mag_arcsec2"].iloc[1] - 0.5
+    assert (vis["sky_mag_arcsec2"] < 20.0).all()  # full Moon: far brighter than a 21.0 dark sky
+
+    new = sky.night_for(site, "2026-12-09")  # new Moon 2026-12-09 (from memory); checked below
+    assert new.moon_illum.max() < 0.05
+    # a target that transits at the window's start (best = start edge, Sun at -12) vs mid-window
+    ri = new.dark_start_utc
+    from planner.sky.visibility import apparent_place
+    _r, _d, ast = apparent_place(np.array([0.0]), np.array([0.0]), site, new.middle_utc)
+    lst_mid = np.degrees(float(ast["eral"])) % 360.0  # RA on the meridian at the middle (approx.)
+    hours_to_start = (ri - new.middle_utc) / np.timedelta64(1, "h")
+    ra2 = np.array([(lst_mid + 15.041 * hours_to_start) % 360.0, lst_mid])
+    vis2 = sky.visibility(ra2, np.array([40.0, 40.0]), site, new)
+    assert abs((vis2["best_utc"].iloc[0] - new.dark_start_utc) / np.timedelta64(1, "m")) < 10
+    assert vis2["sky_mag_arcsec2"].iloc[0] < vis2["sky_mag_arcsec2"].iloc[1] - 1.0
