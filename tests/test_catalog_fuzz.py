@@ -194,3 +194,24 @@ def test_every_single_byte_replacement(parser, rows):
     read = set(df["line_no"].astype(int))
     rej = {ln for ln, _ in df.attrs["problems"]}
     assert 1 in read and read | rej == set(range(1, len(lines) + 1)) and not read & rej
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(content=st.binary(max_size=3000), kind=st.sampled_from(["wds", "orb6", "any"]))
+def test_fuzz_whole_files(tmp_path_factory, content, kind):
+    # Whole files of arbitrary bytes (line ends included): a reader returns a table or raises a
+    # PlannerError with one line -- never another exception, never a traceback for the user.
+    from planner.catalogs.catalog import load_catalog
+    from planner.catalogs.orb6 import read_orb6
+    from planner.catalogs.wds import read_wds
+    from planner.errors import PlannerError
+
+    p = tmp_path_factory.mktemp("fz") / "cat.txt"
+    p.write_bytes(content)
+    reader = {"wds": read_wds, "orb6": read_orb6, "any": lambda x: load_catalog(str(x)).pairs}[kind]
+    try:
+        df = reader(p)
+    except PlannerError as exc:
+        assert "\n" not in str(exc)
+    else:
+        assert len(df) >= 0
