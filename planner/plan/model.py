@@ -71,6 +71,7 @@ class ScopePlan:
     schedule: object = None          # DataFrame with SCHEDULE_COLUMNS
     n_split: int = 0
     n_challenge: int = 0
+    summary: str = ""                # one line: what this scope splits / was given
 
 
 @dataclass

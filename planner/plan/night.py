@@ -413,6 +413,13 @@ def plan_night(request: NightRequest, catalog=None) -> NightPlan:
             parts.append(extra)
         sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
             else empty_schedule()
+        n_all = int(((j["verdict"] == "split") & j["up"]).sum())
+        n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
+        if assign is None:
+            summary = f"{n_all} pairs split tonight, {n_near} near misses"
+        else:
+            summary = (f"splits {n_all} pairs tonight; {len(split)} of them are on its share of the club list"
+                       + (f", plus {len(chal)} near misses" if request.challenges else ""))
         plan.scopes.append(ScopePlan(name=name, telescope=dict(sd), candidates=j, schedule=sched,
-                                     n_split=int(len(split)), n_challenge=int(len(chal))))
+                                     n_split=n_all, n_challenge=n_near, summary=summary))
     return plan

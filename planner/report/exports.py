@@ -191,7 +191,7 @@ def render_text(plan) -> str:
         out.append("")
         label = sp.name if sp.name == f"{float(t.get('aperture_mm', 0)):g} mm" else f"{sp.name}: {float(t.get('aperture_mm', 0)):g} mm"
         out.append(f"== {label}, obstruction {float(t.get('obstruction', 0)):.2f}"
-                   f" - {sp.n_split} pairs split tonight, {sp.n_challenge} near misses")
+                   f" - {sp.summary}")
         sched = sp.schedule
         if sched is None or len(sched) == 0:
             out.append("   nothing to schedule (no pair splits and stays up long enough in the dark window)")

@@ -97,8 +97,7 @@ def _scope_section(plan, sp) -> str:
     t = sp.telescope
     sched = sp.schedule if sp.schedule is not None else pd.DataFrame()
     head = (f'<section class="card scope"><h2>{E(sp.name)} <small>{_f(t.get("aperture_mm"), "g")} mm, '
-            f'obstruction {_f(t.get("obstruction", 0), ".2f")} · {sp.n_split} pairs split tonight · '
-            f"{sp.n_challenge} near misses</small></h2>")
+            f'obstruction {_f(t.get("obstruction", 0), ".2f")} · {E(sp.summary)}</small></h2>')
     if len(sched) == 0:
         return head + "<p>Nothing to schedule: no pair splits and stays up long enough in the dark window.</p></section>"
     main = sched[sched["section"] == "plan"]
