@@ -44,12 +44,21 @@ def _isolated_user_dirs(tmp_path_factory, monkeypatch):
     yield base
 
 
+#: Byte-for-byte copies of the USNO reference files kept with the tests, so the
+#: suite does not depend on ../shared being present (see tests/data/README.md).
+#: The ORB6 orbits file itself is the bundled sample.
+_COPIES = (DATA / "usno", Path(__file__).resolve().parents[1] / "catalogs_sample")
+
+
 def reference_file(name: str) -> Path:
-    """A file in ../shared/reference; the test is skipped if it is absent."""
-    p = REFERENCE / name
-    if not p.exists():
-        pytest.skip(f"shared reference file {p} not available")
-    return p
+    """A USNO reference file: ../shared/reference if present, else the copy kept
+    in tests/data/usno or catalogs_sample; skipped (whole module if called at
+    import) only if none exists."""
+    for folder in (REFERENCE, *_COPIES):
+        p = folder / name
+        if p.exists():
+            return p
+    pytest.skip(f"reference file {name} not available", allow_module_level=True)
 
 
 @pytest.fixture

@@ -26,7 +26,19 @@ RETRIEVED = "2008-11"
 def sample_paths():
     """Context-managed real paths of the two sample files (works from a wheel or a zip)."""
     stack = ExitStack()
-    root = resources.files(PACKAGE)
+    try:
+        root = resources.files(PACKAGE)
+    except ModuleNotFoundError:
+        # Running from a source checkout that shadows the installed package
+        # (e.g. ``python -m pytest`` in the repository): use the folder itself.
+        from pathlib import Path
+
+        root = Path(__file__).resolve().parents[2] / "catalogs_sample"
+        if not (root / ORB6_FILE).exists():
+            from planner.errors import CatalogError
+
+            raise CatalogError("the bundled sample is missing from this installation; "
+                               "reinstall splitplan (pip install splitplan) or give --catalog PATH") from None
     wds = stack.enter_context(resources.as_file(root / WDS_FILE))
     orb = stack.enter_context(resources.as_file(root / ORB6_FILE))
     return stack, wds, orb
