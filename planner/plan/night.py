@@ -190,18 +190,18 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
 
 def restrict_to_targets(table: pd.DataFrame, path, catalog=None) -> pd.DataFrame:
     """Keep the pairs named in a user's target list (CSV of WDS ids or designations)."""
-    import planner.catalogs as cats
+    from planner.catalogs import read_target_list, restrict
 
-    read = getattr(cats, "read_target_list", None)
-    restrict = getattr(cats, "restrict", None)
-    if read is None or restrict is None:
-        from planner.catalogs import targets as _t  # type: ignore
+    if catalog is None:
+        raise InputError("a target list needs the catalogue it refers to")
+    sub = restrict(catalog, read_target_list(path))
+    unmatched = sub.pairs.attrs.get("unmatched") or []
+    if unmatched:
+        import sys
 
-        read, restrict = _t.read_target_list, _t.restrict
-    wanted = read(path)
-    sub = restrict(catalog, wanted) if catalog is not None else None
-    idx = sub.pairs.index if hasattr(sub, "pairs") else pd.Index(sub.index if hasattr(sub, "index") else sub)
-    return table[table.index.isin(idx)]
+        names = ", ".join(repr(q) for q, _ in unmatched[:5])
+        print(f"splitplan: note: {len(unmatched)} name(s) in {path} match no pair: {names}", file=sys.stderr)
+    return table[table.index.isin(sub.pairs.index)]
 
 
 # -- judging and scoring ----------------------------------------------------------

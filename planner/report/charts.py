@@ -223,10 +223,9 @@ def draw_pair(ax, row, aperture_mm: float) -> None:
     ax.set_aspect("equal")
     ax.set_xticks([])
     ax.set_yticks([])
-    ax.annotate("N", xy=(0.88, 0.95), xytext=(0.88, 0.72), xycoords="axes fraction",
-                arrowprops={"arrowstyle": "->", "color": "#cfd8e3"}, color="#cfd8e3", fontsize=6,
-                ha="center", va="top")
-    ax.annotate("E", xy=(0.62, 0.72), xytext=(0.88, 0.72), xycoords="axes fraction",
-                arrowprops={"arrowstyle": "->", "color": "#cfd8e3"}, color="#cfd8e3", fontsize=6,
-                ha="right", va="center")
+    arrow = {"arrowstyle": "->", "color": "#cfd8e3", "lw": 0.8}
+    ax.annotate("", xy=(0.90, 0.92), xytext=(0.90, 0.72), xycoords="axes fraction", arrowprops=arrow)
+    ax.annotate("", xy=(0.70, 0.72), xytext=(0.90, 0.72), xycoords="axes fraction", arrowprops=arrow)
+    ax.text(0.90, 0.94, "N", transform=ax.transAxes, color="#cfd8e3", fontsize=6, ha="center", va="bottom")
+    ax.text(0.67, 0.72, "E", transform=ax.transAxes, color="#cfd8e3", fontsize=6, ha="right", va="center")
     ax.set_title(pdf_text(f"{_label(row)}  θ{theta:.0f}° ρ{rho:.2f}\""), fontsize=6)

@@ -46,13 +46,21 @@ def _cover(plan, pdf, plt):
         + (", ".join(f"{k}={v}" for k, v in (r.filters or {}).items()) or "none"),
         f"Catalogue: {plan.catalog_source}; splitplan {plan.version}",
     ]
-    for k, line in enumerate(lines):
-        fig.text(0.04, 0.90 - 0.028 * k, P(line), fontsize=9)
-    fig.text(0.04, 0.68, "Cautions", fontsize=10, weight="bold", color="#9c4221")
-    for k, c in enumerate(plan.cautions):
-        fig.text(0.05, 0.65 - 0.025 * k, P("- " + c), fontsize=8, color="#9c4221")
-    for fig_src, box in ((charts.altitude_figure(plan), [0.03, 0.03, 0.62, 0.52]),
-                         (charts.sky_figure(plan), [0.66, 0.03, 0.32, 0.52])):
+    import textwrap
+
+    wrapped = [w for line in lines for w in (textwrap.wrap(line, 150, subsequent_indent="    ") or [""])]
+    y = 0.90
+    for line in wrapped[:9]:
+        fig.text(0.04, y, P(line), fontsize=9)
+        y -= 0.026
+    y -= 0.01
+    fig.text(0.04, y, "Cautions", fontsize=10, weight="bold", color="#9c4221")
+    for c in plan.cautions:
+        for w in textwrap.wrap("- " + c, 170, subsequent_indent="  ")[:2]:
+            y -= 0.023
+            fig.text(0.05, y, P(w), fontsize=8, color="#9c4221")
+    for fig_src, box in ((charts.altitude_figure(plan), [0.03, 0.02, 0.62, 0.50]),
+                         (charts.sky_figure(plan), [0.66, 0.02, 0.32, 0.50])):
         buf = io.BytesIO()
         fig_src.savefig(buf, format="png", dpi=150)
         plt.close(fig_src)
@@ -92,8 +100,9 @@ def _table_pages(plan, pdf, plt):
                 tab = ax.table(cellText=[[P(c) for c in row] for row in chunk], colLabels=cols, loc="upper left",
                                cellLoc="left", colLoc="left")
                 tab.auto_set_font_size(False)
-                tab.set_fontsize(7)
+                tab.set_fontsize(8)
                 tab.auto_set_column_width(list(range(len(cols))))
+                tab.scale(1.0, 1.35)
                 for (i, j), cell in tab.get_celld().items():
                     cell.set_edgecolor("#d8dee6")
                     if i == 0:
