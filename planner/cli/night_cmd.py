@@ -56,6 +56,8 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
             raise InputError("give both --lat and --lon (degrees; east positive)")
         if site:
             raise InputError("give either --site NAME or --lat/--lon, not both")
+        if tz is None:
+            print("splitplan: note: no --tz given; local times are shown in UTC", file=sys.stderr)
         site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0, "tz": tz or "UTC"}
         site_name = ""
     elif site_d is not None:
@@ -127,7 +129,7 @@ def night(
     scope: Optional[List[str]] = typer.Option(None, "--scope", help="Saved telescope (repeat for a club session).", rich_help_panel="Telescope"),
     aperture: Optional[List[float]] = typer.Option(None, "--aperture", help="Clear aperture, mm (repeatable).", rich_help_panel="Telescope"),
     obstruction: Optional[List[float]] = typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio 0-0.9.", rich_help_panel="Telescope"),
-    session: Optional[Path] = typer.Option(None, "--session", help="Club session file (TOML: [[scope]] tables, optional [site]).", rich_help_panel="Telescope"),
+    session: Optional[Path] = typer.Option(None, "--session", help="Club session file (TOML: the site and a list of scope tables).", rich_help_panel="Telescope"),
     seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel="Air"),
     steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 by eye, converted by the seeing table (docs/plan.md).", rich_help_panel="Air"),
     darkness: Optional[str] = typer.Option(None, "--darkness", help=DARK_HELP, rich_help_panel="Air"),
