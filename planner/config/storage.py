@@ -52,6 +52,16 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
     except OSError as exc:
         raise PlannerError(f"cannot write {path}: {exc.strerror or exc}") from None
     try:
+        # mkstemp creates the file readable by its owner only; give the result
+        # the mode an ordinary write would have (an existing file keeps its
+        # mode), so a plan meant for the club is readable by the club.
+        try:
+            mode = path.stat().st_mode & 0o7777
+        except OSError:
+            umask = os.umask(0)
+            os.umask(umask)
+            mode = 0o666 & ~umask
+        os.chmod(tmp, mode)
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
             fh.flush()
