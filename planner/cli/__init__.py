@@ -52,18 +52,78 @@ def fail(message: str, code: int = 1) -> "typer.Exit":
     return typer.Exit(code)
 
 
+def _given_value(argv: list[str], param) -> str | None:
+    """The text the user gave for option ``param`` (for the error line), if found."""
+    opts = [o for o in (getattr(param, "opts", None) or []) if o.startswith("-")]
+    for i, a in enumerate(argv):
+        for o in opts:
+            if a == o and i + 1 < len(argv):
+                return argv[i + 1]
+            if a.startswith(o + "="):
+                return a[len(o) + 1:]
+    return None
+
+
+def _usage_line(exc, argv: list[str]) -> str:
+    """One line for a command-line parsing error (unknown option, bad number...)."""
+    msg = " ".join(exc.format_message().split())
+    value = _given_value(argv, getattr(exc, "param", None)) if getattr(exc, "param", None) else None
+    if value is not None and repr(value) not in msg:
+        msg = msg.rstrip('. ') + f"; got {value!r}"
+    ctx = getattr(exc, "ctx", None)
+    where = ctx.command_path if ctx is not None else "splitplan"
+    return f"{msg.rstrip('. ')} (see '{where} -h')"
+
+
 def main(argv: list[str] | None = None) -> None:
-    """Console-script entry point."""
+    """Console-script entry point.
+
+    Every failure ends as one line on stderr and a non-zero exit code: a
+    :class:`PlannerError` with its own code (1 failure, 2 usage), a
+    command-line parsing error with 2, a file-system error with 1, and any
+    unexpected exception with 1 as an "internal error" line (the traceback
+    only with ``SPLITPLAN_DEBUG=1``)."""
+    from typer._click.exceptions import ClickException, NoArgsIsHelpError, UsageError
+    from typer.exceptions import Abort
+
     from planner.errors import PlannerError
 
+    args = list(sys.argv[1:] if argv is None else argv)
+    debug = bool(os.environ.get("SPLITPLAN_DEBUG"))
     _register()
     try:
-        app(args=argv, prog_name="splitplan", standalone_mode=True)
+        rv = app(args=args, prog_name="splitplan", standalone_mode=False)
     except PlannerError as exc:
-        if os.environ.get("SPLITPLAN_DEBUG"):
+        if debug:
             raise
         print(f"splitplan: error: {exc}", file=sys.stderr)
         sys.exit(exc.exit_code)
-    except KeyboardInterrupt:
+    except NoArgsIsHelpError as exc:  # the help has been printed already
+        sys.exit(exc.exit_code)
+    except UsageError as exc:
+        if debug:
+            raise
+        print(f"splitplan: error: {_usage_line(exc, args)}", file=sys.stderr)
+        sys.exit(exc.exit_code)
+    except ClickException as exc:
+        if debug:
+            raise
+        print(f"splitplan: error: {' '.join(exc.format_message().split())}", file=sys.stderr)
+        sys.exit(exc.exit_code)
+    except (KeyboardInterrupt, Abort):
         print("splitplan: interrupted", file=sys.stderr)
         sys.exit(130)
+    except OSError as exc:
+        if debug:
+            raise
+        what = f" {exc.filename}" if getattr(exc, "filename", None) else ""
+        print(f"splitplan: error: cannot access{what}: {exc.strerror or exc}", file=sys.stderr)
+        sys.exit(1)
+    except Exception as exc:  # a bug: still one line, the traceback on request
+        if debug:
+            raise
+        first = (str(exc).splitlines() or [""])[0][:200]
+        print(f"splitplan: internal error: {type(exc).__name__}: {first} "
+              "(please report it; SPLITPLAN_DEBUG=1 shows the traceback)", file=sys.stderr)
+        sys.exit(1)
+    sys.exit(rv if isinstance(rv, int) and not isinstance(rv, bool) else 0)
