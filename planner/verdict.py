@@ -80,6 +80,10 @@ POWER_PER_MM = 2.0
 BLUR_APPARENT_MAX_ARCSEC = 600.0
 #: magnitude difference from which a failure in perfect air is blamed on the rings
 RING_DM = 2.5
+#: Airmass from which a pair that would pass at the zenith is called "too low"
+#: rather than "seeing-limited": 2.0, i.e. about 30 deg altitude, the usual
+#: lower bound for careful close-double work (common practice, no source).
+LOW_AIRMASS = 2.0
 
 #: reason codes and their wording
 REASONS = {
@@ -258,7 +262,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
         (margin < MARGIN_CHALLENGE) & fails_perfect & (dm >= RING_DM) & ring_zone,
         (margin < MARGIN_CHALLENGE) & fails_perfect & (dm >= RING_DM),
         (margin < MARGIN_CHALLENGE) & fails_perfect,
-        (margin < MARGIN_CHALLENGE) & ok_at_zenith & (xcalc > 1.0),
+        (margin < MARGIN_CHALLENGE) & ok_at_zenith & (xcalc >= LOW_AIRMASS),
         (margin < MARGIN_CHALLENGE) & (dm >= 3.0),
         margin < MARGIN_CHALLENGE,
         margin < MARGIN_SPLIT,

@@ -86,6 +86,13 @@ def test_reasons_for_rings_seeing_faintness_and_altitude():
     low = judge([1.6], [6.0], [6.2], [4.0], t, 2.0, dispersion_arcsec=[2.0])
     assert high["verdict"].iloc[0] != "no"
     assert (low["verdict"].iloc[0], low["reason_code"].iloc[0]) == ("no", "too-low")
+    # the same failure at airmass 1.44 (44 deg up) is the seeing, not the altitude: "too low" is kept
+    # for airmass >= 2, about 30 deg (common practice, no source)
+    # (a 1.45" equal pair in 2" seeing: clean at the zenith, lost at airmass 1.7, "too low" from 2)
+    assert judge([1.45], [6.0], [6.2], [1.0], t, 2.0)["reason_code"].iloc[0] == "clean"
+    mid = judge([1.45], [6.0], [6.2], [1.7], t, 2.0)
+    assert (mid["verdict"].iloc[0], mid["reason_code"].iloc[0]) == ("no", "seeing")
+    assert judge([1.45], [6.0], [6.2], [2.0], t, 2.0)["reason_code"].iloc[0] == "too-low"
     # companion of mag 16 in a 200 mm telescope under a suburban sky: too faint
     faint = judge([20.0], [8.0], [16.0], [1.2], t, 1.5, sky_mag_arcsec2=19.0)
     assert (faint["verdict"].iloc[0], faint["reason_code"].iloc[0]) == ("no", "too-faint")
