@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import sys
 from pathlib import Path
-from typing import Optional
+from typing import List, Optional
 
 import typer
 
@@ -333,25 +333,130 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
 # -- command -----------------------------------------------------------------------
 
 
+def tonight_report(catalog, label, *, site=None, lat=None, lon=None, elevation=None, tz=None, min_alt=None,
+                   date=None, scope=None, aperture=None, obstruction=None, seeing=None, steadiness=None,
+                   darkness=None) -> dict:
+    """The verdict for one telescope tonight (or on the evening of ``date``):
+    :func:`planner.plan.single.check_pair` with the site, telescope and seeing
+    resolved exactly as ``splitplan night`` resolves them."""
+    from planner.cli.night_cmd import build_request
+    from planner.errors import InputError
+    from planner.plan.night import resolve_seeing
+    from planner.plan.single import check_pair
+
+    if darkness is not None and darkness not in ("civil", "nautical", "astronomical"):
+        raise InputError(f"--darkness {darkness!r} is not one of civil, nautical, astronomical")
+    if scope and len(scope) > 1 or aperture and len(aperture) > 1:
+        raise InputError("splitplan pair judges one telescope; use 'splitplan night' for several")
+    req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
+                        scope=scope, aperture=aperture, obstruction=obstruction, seeing=seeing,
+                        steadiness=steadiness, darkness=darkness)
+    seeing_arcsec, seeing_origin = resolve_seeing(req)
+    rep = check_pair(catalog, label, req.site, req.date, req.scopes[0], seeing_arcsec,
+                     darkness=req.darkness, minutes=req.minutes)
+    rep["telescope"] = req.scopes[0]
+    rep["tz"] = str(req.site.get("tz", "UTC")) if isinstance(req.site, dict) else "UTC"
+    rep["seeing_arcsec"] = seeing_arcsec
+    rep["seeing_origin"] = seeing_origin
+    return rep
+
+
+_VERDICT_TEXT = {"split": "should split", "challenge": "a challenge (near the limit)", "no": "will not split"}
+
+
+def _local(iso_utc: str, tz: str) -> str:
+    """ISO UTC text -> 'YYYY-MM-DD HH:MM' in the zone ``tz``."""
+    import datetime as dt
+    from zoneinfo import ZoneInfo
+
+    t = dt.datetime.fromisoformat(iso_utc.replace("Z", "+00:00"))
+    return t.astimezone(ZoneInfo(tz)).strftime("%Y-%m-%d %H:%M %Z")
+
+
+def render_tonight(rep: dict) -> str:
+    """Plain-text verdict section of :func:`tonight_report`."""
+    tz = rep["tz"]
+    t = rep["telescope"]
+    tel = f"{t.get('aperture_mm', 0):g} mm"
+    if t.get("obstruction"):
+        tel += f", obstruction {t['obstruction']:.2f}"
+    if t.get("name") and t["name"] != f"{t.get('aperture_mm', 0):g} mm":
+        tel = f"{t['name']} ({tel})"
+    lines = ["", f"tonight     evening of {rep['date']} with {tel}, seeing {rep['seeing_origin']}"]
+    if rep["dark_start_utc"]:
+        lines.append(f"dark window {_local(rep['dark_start_utc'], tz)} to {_local(rep['dark_end_utc'], tz)}"
+                     f" ({rep['darkness']}, {tz})")
+    else:
+        lines.append(f"dark window none tonight ({rep['darkness']} darkness is not reached)")
+    if rep["best_local"]:
+        lines.append(f"best time   {rep['best_local']} ({tz}), altitude {_f(rep['alt_best_deg'], '.0f')} deg,"
+                     f" airmass {_f(rep['airmass_best'], '.2f')}, {_f(rep['up_dark_min'], '.0f')} min up in the dark")
+    verdict = _VERDICT_TEXT.get(rep["verdict"], rep["verdict"])
+    if not rep["observable"]:
+        verdict = f"not well placed tonight; at its best time it {verdict}"
+    lines.append(f"verdict     {verdict}: limit {_f(rep['limit_arcsec'], '.2f')}\", margin x{_f(rep['margin'], '.2f')},"
+                 f" chance {_f(None if rep['chance'] is None else 100 * rep['chance'], '.0f')}%")
+    lines.append(f"why         {rep['reason']}")
+    if rep["power_min"] is not None:
+        lines.append(f"power       {_f(rep['power_min'], '.0f')}x to {_f(rep['power_max'], '.0f')}x")
+    b = rep["best_dates"]
+    if b["ever_up"]:
+        season = f"{b['good_from']} to {b['good_to']}" if b["good_from"] else "-"
+        lines.append(f"best dates  transits at midnight on {b['midnight_transit']}; good season {season}"
+                     f" (transit within {b['season_hours']:g} h of midnight), highest {b['max_alt_deg']:.0f} deg")
+    else:
+        lines.append("best dates  never rises at this latitude")
+    for c in rep["cautions"]:
+        lines.append(f"! {c}")
+    return "\n".join(lines) + "\n"
+
+
 @app.command("pair", no_args_is_help=True)
 def pair(
     query: str = typer.Argument(..., help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272)."),
     catalog: str = typer.Option("sample", "--catalog", help="sample (bundled), vizier (local snapshot) or a file path."),
-    date: Optional[str] = typer.Option(None, "--date", help="Date YYYY-MM-DD (0 h UTC); default now."),
+    date: Optional[str] = typer.Option(None, "--date", help="Date YYYY-MM-DD (the evening, for the verdict); default now."),
     epoch: Optional[float] = typer.Option(None, "--epoch", help="Epoch as a year, e.g. 2031.5 (Besselian)."),
     years: Optional[str] = typer.Option(None, "--years", help="Table over FROM:TO[:STEP] years, e.g. 2020:2040:2."),
     plot: Optional[Path] = typer.Option(None, "--plot", help="Draw the apparent orbit to FILE.png or FILE.svg."),
     as_json: bool = typer.Option(False, "--json", help="Machine-readable output."),
     precession: str = typer.Option("j2000", "--precession",
                                    help="Precession of theta: j2000 (default), equinox or none."),
+    site: Optional[str] = typer.Option(None, "--site", help="Saved site profile.", rich_help_panel="Verdict tonight"),
+    lat: Optional[float] = typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel="Verdict tonight"),
+    lon: Optional[float] = typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel="Verdict tonight"),
+    elevation: Optional[float] = typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel="Verdict tonight"),
+    tz: Optional[str] = typer.Option(None, "--tz", help="IANA time zone, e.g. Europe/Berlin.", rich_help_panel="Verdict tonight"),
+    min_alt: Optional[float] = typer.Option(None, "--min-alt", help="Lowest useful altitude, deg (default 20).", rich_help_panel="Verdict tonight"),
+    scope: Optional[List[str]] = typer.Option(None, "--scope", help="Saved telescope profile.", rich_help_panel="Verdict tonight"),
+    aperture: Optional[List[float]] = typer.Option(None, "--aperture", help="Clear aperture, mm.", rich_help_panel="Verdict tonight"),
+    obstruction: Optional[List[float]] = typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio.", rich_help_panel="Verdict tonight"),
+    seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel="Verdict tonight"),
+    steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 by eye (seeing table).", rich_help_panel="Verdict tonight"),
+    darkness: Optional[str] = typer.Option(None, "--darkness", help="civil, nautical (default) or astronomical.", rich_help_panel="Verdict tonight"),
 ) -> None:
-    """Separation and position angle of one pair today (or at --date/--epoch), with method and uncertainty."""
+    """Separation and position angle of one pair today (or at --date/--epoch), with method and
+    uncertainty; with a site and a telescope, also the verdict for tonight, the best time and
+    the best dates of the year."""
     import json
 
+    from planner.errors import InputError
+
+    wants_verdict = any(v for v in (site, lat, lon, scope, aperture))
     epoch_yr = resolve_epoch(date, epoch)
     epochs = parse_years(years) if years else None
     cat, label = find(catalog, query)
     rep = geometry_report(cat, label, epoch_yr, precession)
+    tonight = None
+    if wants_verdict:
+        if epoch is not None:
+            raise InputError("the verdict is for an evening: give --date YYYY-MM-DD, not --epoch")
+        tonight = tonight_report(cat, label, site=site, lat=lat, lon=lon, elevation=elevation, tz=tz,
+                                 min_alt=min_alt, date=date, scope=scope, aperture=aperture,
+                                 obstruction=obstruction, seeing=seeing, steadiness=steadiness,
+                                 darkness=darkness)
+    elif any(v is not None for v in (seeing, steadiness, darkness, obstruction, elevation, tz, min_alt)):
+        raise InputError("a verdict needs a site (--site or --lat/--lon/--tz) and a telescope (--aperture or --scope)")
     table = year_table(cat, label, epochs, precession) if epochs is not None else None
     if plot is not None:
         written = plot_pair(cat, label, epoch_yr, plot, precession)
@@ -359,8 +464,12 @@ def pair(
     if as_json:
         if table is not None:
             rep["table"] = table
+        if tonight is not None:
+            rep["tonight"] = tonight
         sys.stdout.write(json.dumps(rep, indent=2) + "\n")
         return
     sys.stdout.write(render_report(rep))
+    if tonight is not None:
+        sys.stdout.write(render_tonight(tonight))
     if table is not None:
         sys.stdout.write("\n" + render_table(table))
