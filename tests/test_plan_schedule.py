@@ -15,7 +15,7 @@ import pytest
 
 from planner.plan.schedule import greedy_schedule
 from planner.sky.site import Site
-from planner.sky.visibility import alt_az_at
+from planner.sky.placement import alt_az_at
 
 SITE = Site(lat_deg=46.2, lon_deg=7.4, elevation_m=800.0, tz="Europe/Zurich", min_alt_deg=25.0)
 START = np.datetime64("2026-12-02T18:00:00", "ns")

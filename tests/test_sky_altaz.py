@@ -143,7 +143,7 @@ def test_numpy_apparent_place_matches_erfa_atciq():
     import erfa
 
     from planner.sky._astrometry import astrom_at
-    from planner.sky.visibility import _cirs_fast
+    from planner.sky.placement import _cirs_fast
 
     rng = np.random.default_rng(99)
     ra, dec = rng.uniform(0, 360, 5000), np.degrees(np.arcsin(rng.uniform(-1, 1, 5000)))

@@ -25,7 +25,7 @@ import pandas as pd
 import pytest
 
 import planner.sky as sky
-from planner.sky.visibility import VISIBILITY_COLUMNS
+from planner.sky.placement import VISIBILITY_COLUMNS
 
 MIN = np.timedelta64(1, "m")
 
@@ -260,7 +260,7 @@ def test_sky_brightness_full_moon_and_twilight():
     assert new.moon_illum.max() < 0.05
     # a target that transits at the window's start (best = start edge, Sun at -12) vs mid-window
     ri = new.dark_start_utc
-    from planner.sky.visibility import apparent_place
+    from planner.sky.placement import apparent_place
     _r, _d, ast = apparent_place(np.array([0.0]), np.array([0.0]), site, new.middle_utc)
     lst_mid = np.degrees(float(ast["eral"])) % 360.0  # RA on the meridian at the middle (approx.)
     hours_to_start = (ri - new.middle_utc) / np.timedelta64(1, "h")

@@ -61,7 +61,7 @@ def make_night(site, local_date, darkness: str):
 
 def altaz(ra_deg, dec_deg, site, when_utc):
     """Geometric (unrefracted) altitude and azimuth (deg) of J2000 positions at UTC instant(s), broadcast."""
-    from planner.sky.visibility import alt_az_at
+    from planner.sky.placement import alt_az_at
 
     return alt_az_at(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site,
                      np.asarray(when_utc, "datetime64[ns]"))
@@ -71,7 +71,7 @@ class FastAltAz:
     """Geometric alt/az of a fixed set of targets at any instant of one night, fast.
 
     The sky engine's method: the apparent (CIRS) place once per night
-    (:func:`planner.sky.visibility.apparent_place`, ERFA), then the hour angle
+    (:func:`planner.sky.placement.apparent_place`, ERFA), then the hour angle
     advances linearly with the Earth rotation angle.  Agrees with the full
     path to about an arcsecond over a night (polar motion and diurnal
     aberration left out), which is ample for scheduling; reported altitudes
@@ -80,7 +80,7 @@ class FastAltAz:
 
     def __init__(self, ra_deg, dec_deg, site, when_utc):
         from planner.sky._astrometry import OMEGA_RAD_S
-        from planner.sky.visibility import apparent_place
+        from planner.sky.placement import apparent_place
 
         self.t0 = np.datetime64(when_utc, "ns")
         ri, di, ast = apparent_place(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, self.t0)
@@ -116,7 +116,7 @@ def airmass(alt_deg):
 
 
 def visibility(ra_deg, dec_deg, site, night):
-    from planner.sky.visibility import visibility as _vis
+    from planner.sky.placement import visibility as _vis
 
     return _vis(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, night)
 

@@ -9,7 +9,7 @@ Public names:
 * :func:`night_for`, :class:`Night` -- Sun, twilight, dark window, Moon
   (``planner.sky.night``);
 * :func:`visibility`, :func:`alt_az_at` -- whole-catalogue visibility and
-  alt/az at arbitrary instants (``planner.sky.visibility``);
+  alt/az at arbitrary instants (``planner.sky.placement``);
 * :func:`airmass`, :func:`refraction_arcmin`, :func:`dispersion_arcsec`,
   ``AIRMASS_MODELS``, ``REFRACTION_MODELS`` (``planner.sky.atmosphere``);
 * :func:`altaz` -- geometric alt/az of ICRS positions (below).
@@ -25,9 +25,9 @@ _LAZY = {
     "sun_alt_deg": "planner.sky.night",
     "sun_sep_deg": "planner.sky.night",
     "DARKNESS_LEVELS": "planner.sky.night",
-    "visibility": "planner.sky.visibility",
-    "alt_az_at": "planner.sky.visibility",
-    "VISIBILITY_COLUMNS": "planner.sky.visibility",
+    "visibility": "planner.sky.placement",
+    "alt_az_at": "planner.sky.placement",
+    "VISIBILITY_COLUMNS": "planner.sky.placement",
     "airmass": "planner.sky.atmosphere",
     "refraction_arcmin": "planner.sky.atmosphere",
     "dispersion_arcsec": "planner.sky.atmosphere",

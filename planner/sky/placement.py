@@ -455,15 +455,3 @@ def _sky_mag(site: Site, night: Night, best64, alt_true_deg, moon, moon_sep):
         b_tw = 0.0
     out = atm.mag_from_nl(b_dark + b_moon + b_tw)
     return np.where(alt_true_deg >= 0.0, out, np.nan)
-
-
-# ``planner.sky.visibility`` is both this module and the contract's function name.
-# Once the module is imported, Python binds the package attribute to the
-# module, so the module itself is made callable: ``planner.sky.visibility(...)``
-# then works whichever of the two the name refers to.
-class _CallableModule(__import__("types").ModuleType):
-    def __call__(self, *args, **kwargs):
-        return visibility(*args, **kwargs)
-
-
-__import__("sys").modules[__name__].__class__ = _CallableModule
