@@ -207,6 +207,9 @@ def load_catalog(spec: str = "sample", orbits=None) -> Catalog:
     on stderr), or the path of a WDS summary or ORB6 orbits file
     (``orbits``: an optional ORB6 file to go with a WDS file)."""
     spec = str(spec)
+    if orbits is not None and spec in ("sample", "vizier"):
+        raise InputError(f"an orbits file ({orbits}) goes with the path of a WDS summary file, "
+                         f"not with the catalogue {spec!r}; give --catalog PATH too")
     if spec == "sample":
         from planner.catalogs.sample import load_sample
 

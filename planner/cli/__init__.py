@@ -54,14 +54,17 @@ def fail(message: str, code: int = 1) -> "typer.Exit":
 
 def _given_value(argv: list[str], param) -> str | None:
     """The text the user gave for option ``param`` (for the error line), if found."""
+    if getattr(param, "multiple", False):  # a repeated option: which one is bad is not known
+        return None
     opts = [o for o in (getattr(param, "opts", None) or []) if o.startswith("-")]
+    found = None  # the last occurrence wins, as in the parser
     for i, a in enumerate(argv):
         for o in opts:
             if a == o and i + 1 < len(argv):
-                return argv[i + 1]
-            if a.startswith(o + "="):
-                return a[len(o) + 1:]
-    return None
+                found = argv[i + 1]
+            elif a.startswith(o + "="):
+                found = a[len(o) + 1:]
+    return found
 
 
 def _usage_line(exc, argv: list[str]) -> str:
