@@ -104,3 +104,54 @@ def test_slew_weight_shortens_the_path():
     _, _, loose = _run(weights={"slew": 0.0})
     _, _, tight = _run(weights={"slew": 5.0})
     assert tight["slew_deg"].iloc[1:].mean() <= loose["slew_deg"].iloc[1:].mean()
+
+
+def _astropy_grid_best(ra, dec, n=121):
+    """Highest altitude of each star in the session, from a 5-minute astropy grid (independent)."""
+    ts = START + (END - START) * np.linspace(0, 1, n)
+    alts = np.array([_astropy_alt(ra, dec, t) for t in ts])  # (n, stars)
+    return alts.max(axis=0), ts[alts.argmax(axis=0)]
+
+
+def test_pairs_are_placed_near_their_best_altitude():
+    # The near-best rule: with each pair's best altitude given, a pair is scheduled only while
+    # within 15 deg of it (a project choice, common practice, no source); checked with astropy.
+    ra, dec, score = _targets(120, seed=3)
+    alt_best, t_best = _astropy_grid_best(ra, dec)
+    nat = np.full(len(ra), np.datetime64("NaT"), "datetime64[ns]")
+    s = greedy_schedule(ra, dec, score, t_best.astype("datetime64[ns]"), nat, START, END, minutes=15,
+                        altaz_fn=lambda idx, t: alt_az_at(ra[idx], dec[idx], SITE, t),
+                        min_alt_deg=SITE.min_alt_deg, limit=25, alt_best_deg=alt_best)
+    assert len(s) == 25
+    c = s["cand"].to_numpy()
+    for when in ("slot_start_utc", "slot_end_utc"):
+        alt = np.array([_astropy_alt(ra[k], dec[k], t)[0] for k, t in zip(c, s[when].to_numpy())])
+        assert np.all(alt >= alt_best[c] - 15.0 - 0.1)
+        assert np.all(alt >= SITE.min_alt_deg - 0.05)
+
+
+def test_late_targets_wait_for_their_time():
+    # Two groups on the meridian one hour after the start and one hour before the end: the late group
+    # scores higher, yet it is observed late in the night, not packed into the first slots.
+    # RA that transits at a given instant = local sidereal time then (astropy)
+    from astropy import units as u
+    from astropy.coordinates import EarthLocation
+    from astropy.time import Time
+
+    loc = EarthLocation(lat=SITE.lat_deg * u.deg, lon=SITE.lon_deg * u.deg)
+    lst = lambda t: Time(t, scale="utc").sidereal_time("apparent", longitude=loc.lon).deg
+    early_t, late_t = START + np.timedelta64(60, "m"), END - np.timedelta64(60, "m")
+    ra = np.r_[lst(early_t) + np.linspace(-2, 2, 6), lst(late_t) + np.linspace(-2, 2, 6)] % 360
+    dec = np.full(12, 46.0)
+    score = np.r_[np.full(6, 10.0), np.full(6, 90.0)]
+    best = np.r_[np.full(6, early_t), np.full(6, late_t)].astype("datetime64[ns]")
+    nat = np.full(12, np.datetime64("NaT"), "datetime64[ns]")
+    s = greedy_schedule(ra, dec, score, best, nat, START, END, minutes=15,
+                        altaz_fn=lambda idx, t: alt_az_at(ra[idx], dec[idx], SITE, t),
+                        min_alt_deg=SITE.min_alt_deg, limit=12,
+                        alt_best_deg=np.full(12, 90.0 - abs(SITE.lat_deg - 46.0)))  # transit altitude
+    late = s[s["cand"] >= 6]
+    assert len(late) == 6
+    # every late-group slot is within 1.5 h of the late transit
+    dt_h = np.abs((late["slot_start_utc"].to_numpy() - late_t).astype("int64")) / 3.6e12
+    assert np.all(dt_h <= 1.5)

@@ -97,7 +97,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
         raise InputError(f"target list {targets} does not exist or is not a file")
     req = NightRequest(site=site_d, scopes=scopes, site_name=site_name, date=date,
                        seeing_arcsec=seeing, steadiness=steadiness, darkness=darkness or "nautical",
-                       catalog=catalog or "sample", minutes=minutes or 10.0, limit=limit or 20,
+                       catalog=catalog or "sample", minutes=minutes or 10.0, limit=limit,
                        challenges=bool(challenges), start_local=start, end_local=end, filters=filters)
     if share_margin is not None:
         req.share_margin = share_margin
@@ -145,7 +145,7 @@ def night(
     targets: Optional[Path] = typer.Option(None, "--targets", help="Your own list (CSV of WDS ids or designations).", rich_help_panel="Filters"),
     catalog: Optional[str] = typer.Option(None, "--catalog", help="sample (bundled), vizier (local snapshot) or a file path."),
     minutes: Optional[float] = typer.Option(None, "--minutes", help="Minutes per target (default 10).", rich_help_panel="Schedule"),
-    limit: Optional[int] = typer.Option(None, "--limit", help="At most this many pairs per scope (default 20).", rich_help_panel="Schedule"),
+    limit: Optional[int] = typer.Option(None, "--limit", help="At most this many pairs per scope (default: as many as the night holds).", rich_help_panel="Schedule"),
     challenges: bool = typer.Option(False, "--challenges", help="Add near misses in their own section.", rich_help_panel="Schedule"),
     start: Optional[str] = typer.Option(None, "--start", help="Start no earlier than HH:MM local.", rich_help_panel="Schedule"),
     end: Optional[str] = typer.Option(None, "--end", help="Finish by HH:MM local.", rich_help_panel="Schedule"),

@@ -36,7 +36,7 @@ class NightRequest:
     darkness: str = "nautical"
     catalog: str = "sample"
     minutes: float = 10.0
-    limit: int = 20
+    limit: int | None = None         # pairs per scope; None = as many as the window holds
     challenges: bool = False
     start_local: str | None = None   # HH:MM, cut the window
     end_local: str | None = None

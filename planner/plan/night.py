@@ -250,11 +250,30 @@ def _schedule_section(tel, scope_name, cand, site, seeing, window, minutes, limi
         pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), pool["score"].to_numpy(float),
         _as_ns(pool["best_utc"]), _as_ns(pool["set_utc"]) if "set_utc" in pool else None,
         window[0], window[1], minutes=minutes, altaz_fn=altaz_fn, min_alt_deg=site.min_alt_deg,
-        limit=limit, busy=busy, feasible_fn=feas)
+        limit=limit, busy=busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
     if len(sched) == 0:
         return empty_schedule()
     rows = pool.iloc[sched["cand"].to_numpy()].reset_index(drop=True)
     return _finish_rows(tel, scope_name, rows, sched, site, seeing, section)
+
+
+def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
+    """Pairs per scope: ``request.limit`` if given (half of it for the near
+    misses), else as many slots as the observing window holds (the near misses
+    then fill the gaps the main list leaves)."""
+    if request.limit is not None:
+        return max(1, int(request.limit) // 2) if challenge else int(request.limit)
+    span_min = (np.datetime64(window[1], "ns") - np.datetime64(window[0], "ns")).astype("int64") / 60e9
+    return max(1, int(span_min // float(request.minutes)))
+
+
+def _geometric_best_alt(pool: pd.DataFrame) -> np.ndarray:
+    """Highest geometric altitude inside the window (the sky engine reports the
+    apparent one; the scheduler's altitudes are geometric)."""
+    alt = pool["alt_best_deg"].to_numpy(float)
+    if "refraction_arcmin" in pool:
+        alt = alt - np.nan_to_num(pool["refraction_arcmin"].to_numpy(float)) / 60.0
+    return alt
 
 
 def _as_ns(s) -> np.ndarray:
@@ -328,8 +347,8 @@ def prepare(request: NightRequest, catalog=None):
         raise InputError(f"darkness {request.darkness!r} is not one of {', '.join(DARKNESS)}")
     if not (0 < float(request.minutes) <= 240):
         raise InputError(f"minutes per target {request.minutes!r} must be between 1 and 240")
-    if int(request.limit) < 1:
-        raise InputError(f"limit {request.limit!r} must be at least 1")
+    if request.limit is not None and int(request.limit) < 1:
+        raise InputError(f"limit {request.limit!r} must be at least 1 (leave it out to fill the night)")
     site_d = dict(request.site)
     if request.min_alt_deg is not None:
         site_d["min_alt_deg"] = request.min_alt_deg
@@ -404,12 +423,14 @@ def plan_night(request: NightRequest, catalog=None) -> NightPlan:
         if assign is not None:
             split = split[split.index.isin(assign.get(name, []))]
             chal = chal[chal.index.isin(chal_assign.get(name, []))]
-        main = _schedule_section(tel, name, split, site, seeing, window, minutes, int(request.limit), "plan")
+        main = _schedule_section(tel, name, split, site, seeing, window, minutes, _slot_limit(request, window),
+                                 "plan")
         parts = [main]
         if request.challenges and len(chal):
             busy = list(zip(main["slot_start_utc"], main["slot_end_utc"])) if len(main) else []
             extra = _schedule_section(tel, name, chal, site, seeing, window, minutes,
-                                      max(1, int(request.limit) // 2), "challenge", busy=busy, rejudge=False)
+                                      _slot_limit(request, window, challenge=True), "challenge", busy=busy,
+                                      rejudge=False)
             parts.append(extra)
         sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
             else empty_schedule()

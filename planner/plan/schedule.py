@@ -1,33 +1,47 @@
 """Ordering the chosen pairs into a schedule through the night.
 
-Method: a greedy time-stepping scheduler.  The session runs from the start of
-the observing window (the dark window, optionally cut by the observer's own
-start and end times) in consecutive slots of ``minutes`` each.  At every slot
-the scheduler looks at all pairs not yet observed, *vectorised over the
-candidates*:
+Method: a greedy time-stepping scheduler over a ranked pool.  The session
+runs from the start of the observing window (the dark window, optionally cut
+by the observer's own start and end times) in consecutive slots of
+``minutes`` each.
 
-1. **feasibility** -- the pair must be above the minimum altitude at the start,
-   middle and end of the slot (a slot is short, so altitude is monotone or has
-   one maximum inside it; three samples bound it), and pass any extra check
-   the caller supplies (the planner re-judges the split at the slot's
-   airmass);
-2. **objective** -- among feasible pairs it takes the largest ::
+* **Pool** (when the caller gives each pair's best altitude) -- the ``limit`` best-ranked pairs that can still be observed near
+  their best time.  A pair whose chance has passed (after its best time and
+  already more than ``near_best_deg`` below its best altitude) leaves the pool
+  and the next-ranked pair takes its place, so the list stays the best
+  ``limit`` pairs that fit the night.
+* **Near its best time** -- a pair is eligible for a slot only while its
+  altitude is within ``near_best_deg`` (default 15 deg) of the highest it
+  reaches in tonight's window.  Without this rule a greedy scheduler packs the
+  whole list into the first hours of dusk and shows a pair that transits at
+  2 am low in the east at 8 pm.
+* At every slot the scheduler looks at the eligible pool, *vectorised over
+  the candidates*:
 
-       W["rank"] * score / max(score)
-     + W["best"] * exp(-(dt_best / 1.5 h)^2)        # near its best time tonight
-     + W["urgency"] * exp(-t_left / 1 h)             # soon sets or the window closes
-     - W["slew"] * slew / 180 deg                    # short slews from the last target
+  1. **feasibility** -- the pair must be above the minimum altitude at the
+     start, middle and end of the slot (a slot is short, so altitude is
+     monotone or has one maximum inside it; three samples bound it), near its
+     best altitude (above), and pass any extra check the caller supplies (the
+     planner re-judges the split at the slot's airmass);
+  2. **objective** -- among feasible pairs it takes the largest ::
 
-   where ``dt_best`` is the distance of the slot's middle from the pair's
-   best time, ``t_left`` the time from the slot's end until the pair sinks
-   below the minimum altitude (or the window closes) and ``slew`` the
-   great-circle angle, on the sky at the slot start, from the previous target.
+         W["rank"] * score / max(score)
+       + W["best"] * exp(-(dt_best / 1.5 h)^2)        # near its best time tonight
+       + W["urgency"] * exp(-t_left / 1 h)             # soon sets or the window closes
+       - W["slew"] * slew / 180 deg                    # short slews from the last target
 
-When no pair is feasible the clock advances by ``step_min`` and tries again,
-so gaps appear in the schedule rather than unobservable targets.  The loop
-runs over slots only (a few dozen per night); each step is numpy over the
-candidates.  Greedy scheduling is not optimal (it can strand a pair that sets
-early behind a better-ranked one); the urgency term is there to limit that.
+     where ``dt_best`` is the distance of the slot's middle from the pair's
+     best time, ``t_left`` the time from the slot's end until the pair sinks
+     below the minimum altitude (or the window closes) and ``slew`` the
+     great-circle angle, on the sky at the slot start, from the previous target.
+
+When no pool pair is feasible the clock advances by ``step_min`` and tries
+again, so the schedule has gaps rather than badly placed targets.  The loop
+runs over slots only (at most a few hundred steps per night); each step is
+numpy over the pool.  Greedy scheduling is not optimal (it can strand a pair
+that sets early behind a better-ranked one); the urgency term limits that.
+The weights and the 15 deg tolerance are project choices (common practice,
+no source).
 """
 
 from __future__ import annotations
@@ -40,6 +54,8 @@ import pandas as pd
 #: default objective weights (project choices, common practice, no source)
 SCHEDULE_WEIGHTS = {"rank": 1.0, "best": 0.5, "urgency": 0.5, "slew": 0.4}
 BEST_SCALE_H = 1.5
+#: a pair is scheduled only while within this many degrees of its best altitude
+NEAR_BEST_DEG = 15.0
 URGENCY_SCALE_H = 1.0
 
 _NS_PER_H = 3_600_000_000_000
@@ -55,7 +71,8 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
                     minutes: float, altaz_fn: Callable, min_alt_deg: float, limit: int,
                     weights: dict | None = None, step_min: float = 5.0,
                     busy: list[tuple] | None = None,
-                    feasible_fn: Callable | None = None) -> pd.DataFrame:
+                    feasible_fn: Callable | None = None,
+                    alt_best_deg=None, near_best_deg: float = NEAR_BEST_DEG) -> pd.DataFrame:
     """Schedule candidates into consecutive slots; see the module docstring.
 
     Parameters
@@ -67,6 +84,9 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         at positions ``idx`` (geometric altitude)
     busy : list of (start, end) datetime64 intervals already taken
     feasible_fn : optional ``feasible_fn(idx, alt_deg, when_utc) -> bool array``
+    alt_best_deg : the highest (geometric) altitude of each candidate inside the
+        window; with it, a pair is eligible only within ``near_best_deg`` of it
+        and the pool holds the ``limit`` best-ranked pairs still placeable
 
     Returns
     -------
@@ -90,6 +110,14 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         return _empty()
     remaining = np.ones(len(ra), bool)
     rank_n = sc / max(float(np.nanmax(sc)), 1e-9)
+    by_rank = np.argsort(-np.nan_to_num(sc, nan=-np.inf), kind="stable")
+    ranked_pool = alt_best_deg is not None
+    if ranked_pool:
+        alt_best = np.asarray(alt_best_deg, float)
+        remaining &= ~(alt_best < min_alt_deg)  # never high enough tonight
+        floor = np.where(np.isfinite(alt_best), alt_best - near_best_deg, -np.inf)
+    else:
+        floor = np.full(len(ra), -np.inf)
     prev = None  # position of the previous target
     t = start
     while t + dur <= end and len(rows) < limit and remaining.any():
@@ -97,11 +125,22 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         if clash:
             t = max(b[1] for b in clash)
             continue
-        idx = np.flatnonzero(remaining)
+        if ranked_pool:
+            # pool: the best-ranked pairs not yet observed and not past their chance
+            cand = by_rank[remaining[by_rank]]
+            alt_c, _ = altaz_fn(cand, t)
+            passed = (~np.isnat(best[cand])) & (best[cand] < t) & (alt_c < floor[cand])
+            remaining[cand[passed]] = False
+            idx = np.sort(cand[~passed][: max(limit - len(rows), 0)])
+            if len(idx) == 0:
+                break
+        else:
+            idx = np.flatnonzero(remaining)
         alt0, az0 = altaz_fn(idx, t)
         altm, _ = altaz_fn(idx, t + dur // 2)
         alt1, _ = altaz_fn(idx, t + dur)
-        ok = np.minimum(np.minimum(alt0, altm), alt1) >= min_alt_deg
+        low = np.minimum(np.minimum(alt0, altm), alt1)
+        ok = (low >= min_alt_deg) & (low >= floor[idx])
         if feasible_fn is not None and ok.any():
             ok[ok] = np.asarray(feasible_fn(idx[ok], alt0[ok], t), bool)
         if not ok.any():

@@ -142,7 +142,8 @@ def _inputs(plan) -> str:
              ("time zone", s.get("tz", "")),
              ("minimum altitude", f"{_f(r.min_alt_deg if r.min_alt_deg is not None else s.get('min_alt_deg', 20), 'g')}°"),
              ("telescopes", scopes), ("seeing", plan.seeing_origin),
-             ("per target", f"{r.minutes:g} min, at most {r.limit} pairs per scope"),
+             ("per target", f"{r.minutes:g} min, " + (f"at most {r.limit} pairs per scope" if r.limit
+                                                       else "as many pairs as the night holds")),
              ("filters", filt), ("catalogue", f"{plan.catalog_source} ({r.catalog})"),
              ("splitplan", plan.version)]
     return "<dl>" + "".join(f"<dt>{E(k)}</dt><dd>{E(v)}</dd>" for k, v in items) + "</dl>"

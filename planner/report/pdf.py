@@ -42,7 +42,9 @@ def _cover(plan, pdf, plt):
         f"{local_hm(plan, n.get('dark_end_utc'))} local",
         (f"Moon: {100 * float(n['moon_illumination']):.0f}% lit, above the horizon for {n.get('moon_up', '?')} of the window"
          if n.get("moon_illumination") is not None else "Moon: -"),
-        f"{r.minutes:g} min per target, at most {r.limit} pairs per scope; filters: "
+        f"{r.minutes:g} min per target, "
+        + (f"at most {r.limit} pairs per scope" if r.limit else "as many pairs as the night holds")
+        + "; filters: "
         + (", ".join(f"{k}={v}" for k, v in (r.filters or {}).items()) or "none"),
         f"Catalogue: {plan.catalog_source}; splitplan {plan.version}",
     ]
