@@ -14,7 +14,8 @@ SOFA/ERFA routines that astropy itself uses for ``ICRS -> AltAz``:
 
 UT1-UTC and polar motion come from the IERS table bundled with astropy
 (``astropy-iers-data``), never downloaded (``iers.conf.auto_download`` is set
-False).  Outside the table the edge values are used (UT1-UTC error then grows
+False); the arrays are cached in the user cache folder after the first read
+(:func:`earth_orientation`).  Outside the table the edge values are used (UT1-UTC error then grows
 by some ms per month, i.e. a fraction of an arcsecond per month).
 """
 
@@ -91,23 +92,110 @@ def utc_jd(t64) -> tuple[np.ndarray, np.ndarray]:
     return days + UNIX_EPOCH_JD, frac
 
 
-_eop_table = None
+_eop = None
+#: bump when the layout of the cached Earth-orientation arrays changes
+_EOP_CACHE_FORMAT = 1
+
+
+def _eop_cache_path():
+    """Cache file of the Earth-orientation arrays, named after the bundled IERS data version."""
+    import astropy
+    import astropy_iers_data
+
+    from planner.config.storage import user_dir
+
+    tag = f"{astropy_iers_data.__version__}-{astropy.__version__}-{_EOP_CACHE_FORMAT}"
+    return user_dir("cache") / f"eop-{tag}.npz"
+
+
+def _eop_from_astropy():
+    """MJD, UT1-TAI (s, continuous over leap seconds), xp, yp (arcsec) from astropy's bundled
+    IERS table (IERS-A with IERS-B where present; the same values astropy interpolates)."""
+    from astropy.utils import iers
+
+    ensure_offline()
+    t = iers.earth_orientation_table.get()
+    mjd = np.asarray(t["MJD"].to_value("d"), float)
+    ut1_utc = np.asarray(t["UT1_UTC"].to_value("s"), float)
+    xp = np.asarray(t["PM_x"].to_value("arcsec"), float)
+    yp = np.asarray(t["PM_y"].to_value("arcsec"), float)
+    ok = np.isfinite(ut1_utc) & np.isfinite(xp) & np.isfinite(yp)
+    mjd, ut1_utc, xp, yp = mjd[ok], ut1_utc[ok], xp[ok], yp[ok]
+    return {"mjd": mjd, "ut1_tai": ut1_utc - _tai_utc(mjd), "xp": xp, "yp": yp}
+
+
+def _tai_utc(mjd):
+    """TAI-UTC (s) at 0 h UTC of each MJD (ERFA ``dat``; leap seconds)."""
+    import erfa
+
+    jd = np.asarray(mjd, float) + 2400000.5
+    y, m, d, _ = erfa.jd2cal(jd, 0.0)
+    with np.errstate(all="ignore"):
+        import warnings
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", erfa.ErfaWarning)
+            return np.asarray(erfa.dat(y, m, d, 0.0), float)
+
+
+def _load_eop() -> dict:
+    """The Earth-orientation arrays, from the cache when possible.
+
+    Reading astropy's IERS table takes most of a second; the four arrays it
+    yields are cached as ``.npz`` in the user cache folder, keyed by the
+    versions of astropy and its bundled IERS data, so later runs load them in
+    milliseconds.  A damaged cache file is moved aside, reported on stderr and
+    rebuilt."""
+    import sys
+    import zipfile
+
+    global _eop
+    if _eop is not None:
+        return _eop
+    path = _eop_cache_path()
+    if path.exists():
+        try:
+            with np.load(path) as z:
+                eop = {k: np.asarray(z[k], float) for k in ("mjd", "ut1_tai", "xp", "yp")}
+            if len(eop["mjd"]) > 1 and all(len(v) == len(eop["mjd"]) for v in eop.values()):
+                _eop = eop
+                return _eop
+            raise ValueError("inconsistent arrays")
+        except (OSError, ValueError, KeyError, zipfile.BadZipFile, EOFError):
+            from planner.config.storage import quarantine
+
+            kept = quarantine(path)
+            print(f"splitplan: warning: Earth-orientation cache {path.name} was damaged; kept as {kept.name} "
+                  "and rebuilt", file=sys.stderr)
+    eop = _eop_from_astropy()
+    import io
+
+    from planner.config.storage import atomic_write_bytes
+
+    buf = io.BytesIO()
+    np.savez(buf, **eop)
+    try:
+        atomic_write_bytes(path, buf.getvalue())
+    except Exception:  # a read-only cache folder only costs speed
+        pass
+    _eop = eop
+    return _eop
 
 
 def earth_orientation(jd1, jd2):
-    """UT1-UTC (s) and polar motion xp, yp (rad) from astropy's bundled IERS table."""
-    global _eop_table
-    ensure_offline()
-    if _eop_table is None:
-        from astropy.utils import iers
+    """UT1-UTC (s) and polar motion xp, yp (rad) at UTC instants (two-part JD).
 
-        _eop_table = iers.earth_orientation_table.get()
-    t = _eop_table
-    dut1, _ = t.ut1_utc(jd1, jd2, return_status=True)
-    xp, yp, _ = t.pm_xy(jd1, jd2, return_status=True)
+    Linear interpolation in the daily values of the IERS table bundled with
+    astropy (what astropy's ``IERS.ut1_utc`` and ``pm_xy`` do), with UT1-UTC
+    interpolated as UT1-TAI so that leap seconds do not disturb it.  Outside
+    the table the edge values are used.
+    """
+    eop = _load_eop()
+    mjd = (np.asarray(jd1, float) - 2400000.5) + np.asarray(jd2, float)
+    ut1_tai = np.interp(mjd, eop["mjd"], eop["ut1_tai"])
+    dut1 = ut1_tai + _tai_utc(np.floor(mjd))
     arcsec = np.pi / (180.0 * 3600.0)
-    return (np.asarray(dut1.to_value("s")), np.asarray(xp.to_value("arcsec")) * arcsec,
-            np.asarray(yp.to_value("arcsec")) * arcsec)
+    return (dut1, np.interp(mjd, eop["mjd"], eop["xp"]) * arcsec, np.interp(mjd, eop["mjd"], eop["yp"]) * arcsec)
 
 
 def astrom_at(t64, lat_deg, lon_deg, elevation_m=0.0):
