@@ -182,3 +182,27 @@ def test_random_inputs_are_monotone():
     for bump in ((0.3, 0, 0), (0, 0.4, 0), (0, 0, 0.5)):
         more = required_separation_arcsec(ap, dm + bump[0], eps, see + bump[1], x + bump[2])
         assert np.all(more >= base - 1e-12)
+
+
+def test_table_interpolation_equals_scipy_regular_grid():
+    # The numpy trilinear interpolator used at run time against scipy's
+    # RegularGridInterpolator(method="linear") on the shipped table (reference library).
+    from scipy.interpolate import RegularGridInterpolator
+
+    from planner.optics import separability as S
+
+    t = S.load_table()
+    rng = np.random.default_rng(11)
+    n = 5000
+    pts = np.stack([rng.uniform(-0.5, t["dm_axis"][-1] + 0.5, n),
+                    rng.uniform(0.0, t["eps_axis"][-1] * 1.05, n),
+                    rng.uniform(0.0, t["seeing_axis"][-1] * 1.05, n)], axis=-1)
+    pts[::50] = (t["dm_axis"][5], t["eps_axis"][3], t["seeing_axis"][7])  # grid nodes
+    for c, name in enumerate(t["criteria"]):
+        tab = t["table"][c].astype(float)
+        norm = tab / tab[0, 0, 0]
+        ref = RegularGridInterpolator((t["dm_axis"], t["eps_axis"], t["seeing_axis"]), norm,
+                                      bounds_error=False, fill_value=np.nan)(pts)
+        got = t["_interp"][str(name)](pts)
+        assert np.array_equal(np.isnan(got), np.isnan(ref))
+        assert np.nanmax(np.abs(got - ref)) < 1e-9

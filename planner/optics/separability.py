@@ -361,17 +361,46 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
         buf = io.BytesIO()
         np.savez_compressed(buf, **data)
         atomic_write_bytes(cache, buf.getvalue())
-    from scipy.interpolate import RegularGridInterpolator
-
     data["_interp"] = {}
     for c, name in enumerate(data["criteria"]):
         tab = data["table"][c].astype(float)
         norm = tab / tab[0, 0, 0]
-        data["_interp"][str(name)] = RegularGridInterpolator(
-            (data["dm_axis"], data["eps_axis"], data["seeing_axis"]), norm, method="linear",
-            bounds_error=False, fill_value=np.nan)
+        data["_interp"][str(name)] = _Trilinear(
+            (data["dm_axis"], data["eps_axis"], data["seeing_axis"]), norm)
     _TABLES[key] = data
     return data
+
+
+class _Trilinear:
+    """Linear interpolation on a regular 3-D grid, numpy only (the same result as
+    scipy's ``RegularGridInterpolator(method="linear")``; scipy.interpolate
+    takes longer to import than a whole one-pair check).  Points outside the
+    grid or with NaN coordinates give NaN."""
+
+    def __init__(self, axes, values):
+        self.axes = [np.asarray(a, dtype=float) for a in axes]
+        self.values = np.asarray(values, dtype=float)
+
+    def __call__(self, pts):
+        pts = np.asarray(pts, dtype=float)
+        idx, frac, bad = [], [], np.zeros(len(pts), bool)
+        for d, a in enumerate(self.axes):
+            x = pts[:, d]
+            bad |= ~np.isfinite(x) | (x < a[0]) | (x > a[-1])
+            i = np.clip(np.searchsorted(a, x, side="right") - 1, 0, len(a) - 2)
+            idx.append(i)
+            frac.append(np.clip((x - a[i]) / (a[i + 1] - a[i]), 0.0, 1.0))
+        out = np.zeros(len(pts))
+        for corner in range(8):
+            w = np.ones(len(pts))
+            ii = []
+            for d in range(3):
+                up = (corner >> d) & 1
+                w = w * (frac[d] if up else 1.0 - frac[d])
+                ii.append(idx[d] + up)
+            out += w * self.values[ii[0], ii[1], ii[2]]
+        out[bad] = np.nan
+        return out
 
 
 def relative_separation(delta_mag, obstruction, seeing_lod, criterion="dawes",
