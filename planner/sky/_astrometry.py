@@ -53,13 +53,12 @@ def to_utc64(when) -> np.ndarray:
     Accepts numpy datetime64, ISO text, pandas Timestamp/DatetimeIndex (aware
     ones are converted to UTC), python datetimes and astropy ``Time``.
     """
-    try:
+    if type(when).__module__.startswith("astropy"):  # import astropy only for its own objects
         from astropy.time import Time
-    except ImportError:  # pragma: no cover
-        Time = ()
-    if Time and isinstance(when, Time):
-        ensure_offline()
-        return np.asarray(when.utc.to_value("datetime64"), dtype="datetime64[ns]")
+
+        if isinstance(when, Time):
+            ensure_offline()
+            return np.asarray(when.utc.to_value("datetime64"), dtype="datetime64[ns]")
     if isinstance(when, np.ndarray) and np.issubdtype(when.dtype, np.datetime64):
         return when.astype("datetime64[ns]")
     import pandas as pd
