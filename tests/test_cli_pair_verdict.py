@@ -12,7 +12,6 @@ What is checked, and against what:
 
 import json
 
-import numpy as np
 import pytest
 
 CAPE = ["--lat", "-33.9", "--lon", "18.4", "--tz", "Africa/Johannesburg"]

@@ -11,7 +11,6 @@ the limit is honoured.
 from __future__ import annotations
 
 import numpy as np
-import pytest
 
 from planner.plan.schedule import greedy_schedule
 from planner.sky.site import Site

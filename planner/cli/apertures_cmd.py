@@ -10,25 +10,26 @@ from typing import List, Optional
 import typer
 
 from planner.cli import app
+from planner.cli import options as opt
 
 
 @app.command("apertures", no_args_is_help=True)
 def apertures(
     sizes: List[float] = typer.Argument(..., help="Apertures in mm, e.g. 60 80 102 127 152 203 254 305."),
-    site: Optional[str] = typer.Option(None, "--site", help="Saved site profile.", rich_help_panel="Site"),
-    lat: Optional[float] = typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel="Site"),
-    lon: Optional[float] = typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel="Site"),
-    elevation: Optional[float] = typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel="Site"),
-    tz: Optional[str] = typer.Option(None, "--tz", help="IANA time zone.", rich_help_panel="Site"),
-    min_alt: Optional[float] = typer.Option(None, "--min-alt", help="Lowest useful altitude, deg.", rich_help_panel="Site"),
+    site: Optional[str] = opt.site("Site"),
+    lat: Optional[float] = opt.lat("Site"),
+    lon: Optional[float] = opt.lon("Site"),
+    elevation: Optional[float] = opt.elevation("Site"),
+    tz: Optional[str] = opt.tz("Site"),
+    min_alt: Optional[float] = opt.min_alt("Site"),
     date: Optional[str] = typer.Option(None, "--date", "--from", help="Local date YYYY-MM-DD (start of a range with --to)."),
     date_to: Optional[str] = typer.Option(None, "--to", help="Last date of a range (a few nights are sampled)."),
     nights: int = typer.Option(4, "--nights", help="Nights sampled across --from/--to."),
     obstruction: float = typer.Option(0.0, "--obstruction", help="Central obstruction ratio for every aperture."),
-    seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec."),
-    steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 (converted by the seeing table)."),
-    darkness: Optional[str] = typer.Option(None, "--darkness", help="civil, nautical or astronomical."),
-    catalog: Optional[str] = typer.Option(None, "--catalog", help="sample, vizier or a file path."),
+    seeing: Optional[float] = opt.seeing(),
+    steadiness: Optional[float] = opt.steadiness(),
+    darkness: Optional[str] = opt.darkness(),
+    catalog: Optional[str] = opt.catalog(),
     minutes: Optional[float] = typer.Option(None, "--minutes", help="A pair must be up this long in the dark (default 10)."),
     mag_max: Optional[float] = typer.Option(None, "--mag-max", help="Primary no fainter than this.", rich_help_panel="Filters"),
     dm_max: Optional[float] = typer.Option(None, "--dm-max", help="Largest magnitude difference.", rich_help_panel="Filters"),
@@ -42,8 +43,7 @@ def apertures(
     from planner.errors import InputError
     from planner.plan.apertures import compare_apertures, plot_counts
 
-    if darkness is not None and darkness not in ("civil", "nautical", "astronomical"):
-        raise InputError(f"--darkness {darkness!r} is not one of civil, nautical, astronomical")
+    opt.check_darkness(darkness)
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,

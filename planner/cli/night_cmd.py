@@ -14,9 +14,7 @@ from typing import List, Optional
 import typer
 
 from planner.cli import app
-
-SITE_HELP = "Saved site profile (see 'splitplan profile site list')."
-DARK_HELP = "How dark the window must be: civil (Sun below -6 deg), nautical (-12) or astronomical (-18)."
+from planner.cli import options as opt
 
 
 def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min_alt=None, date=None,
@@ -119,20 +117,20 @@ def emit(plan, as_json: bool, out: Optional[Path]) -> None:
 
 @app.command("night", no_args_is_help=True)
 def night(
-    site: Optional[str] = typer.Option(None, "--site", help=SITE_HELP, rich_help_panel="Site"),
-    lat: Optional[float] = typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel="Site"),
-    lon: Optional[float] = typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel="Site"),
-    elevation: Optional[float] = typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel="Site"),
-    tz: Optional[str] = typer.Option(None, "--tz", help="IANA time zone, e.g. Europe/Berlin.", rich_help_panel="Site"),
-    min_alt: Optional[float] = typer.Option(None, "--min-alt", help="Lowest useful altitude, deg (default 20).", rich_help_panel="Site"),
+    site: Optional[str] = opt.site("Site"),
+    lat: Optional[float] = opt.lat("Site"),
+    lon: Optional[float] = opt.lon("Site"),
+    elevation: Optional[float] = opt.elevation("Site"),
+    tz: Optional[str] = opt.tz("Site"),
+    min_alt: Optional[float] = opt.min_alt("Site"),
     date: Optional[str] = typer.Option(None, "--date", help="Local date of the evening, YYYY-MM-DD (default tonight)."),
-    scope: Optional[List[str]] = typer.Option(None, "--scope", help="Saved telescope (repeat for a club session).", rich_help_panel="Telescope"),
-    aperture: Optional[List[float]] = typer.Option(None, "--aperture", help="Clear aperture, mm (repeatable).", rich_help_panel="Telescope"),
-    obstruction: Optional[List[float]] = typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio 0-0.9.", rich_help_panel="Telescope"),
+    scope: Optional[List[str]] = opt.scope("Telescope"),
+    aperture: Optional[List[float]] = opt.aperture("Telescope"),
+    obstruction: Optional[List[float]] = opt.obstruction("Telescope"),
     session: Optional[Path] = typer.Option(None, "--session", help="Club session file (TOML: the site and a list of scope tables).", rich_help_panel="Telescope"),
-    seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel="Air"),
-    steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 by eye, converted by the seeing table (docs/plan.md).", rich_help_panel="Air"),
-    darkness: Optional[str] = typer.Option(None, "--darkness", help=DARK_HELP, rich_help_panel="Air"),
+    seeing: Optional[float] = opt.seeing("Air"),
+    steadiness: Optional[float] = opt.steadiness("Air"),
+    darkness: Optional[str] = opt.darkness("Air"),
     mag_max: Optional[float] = typer.Option(None, "--mag-max", help="Primary no fainter than this.", rich_help_panel="Filters"),
     mag2_max: Optional[float] = typer.Option(None, "--mag2-max", help="Companion no fainter than this.", rich_help_panel="Filters"),
     dm_max: Optional[float] = typer.Option(None, "--dm-max", help="Largest magnitude difference.", rich_help_panel="Filters"),
@@ -143,7 +141,7 @@ def night(
     ra_to: Optional[float] = typer.Option(None, "--ra-to", help="RA window end, hours (may wrap past 0h).", rich_help_panel="Filters"),
     orbits_only: bool = typer.Option(False, "--orbits-only", help="Only pairs whose position comes from an orbit.", rich_help_panel="Filters"),
     targets: Optional[Path] = typer.Option(None, "--targets", help="Your own list (CSV of WDS ids or designations).", rich_help_panel="Filters"),
-    catalog: Optional[str] = typer.Option(None, "--catalog", help="sample (bundled), vizier (local snapshot) or a file path."),
+    catalog: Optional[str] = opt.catalog(),
     minutes: Optional[float] = typer.Option(None, "--minutes", help="Minutes per target (default 10).", rich_help_panel="Schedule"),
     limit: Optional[int] = typer.Option(None, "--limit", help="At most this many pairs per scope (default: as many as the night holds).", rich_help_panel="Schedule"),
     challenges: bool = typer.Option(False, "--challenges", help="Add near misses in their own section.", rich_help_panel="Schedule"),
@@ -165,8 +163,7 @@ def night(
                  sep_min=sep_min, sep_max=sep_max, constellation=constellation, ra_from=ra_from, ra_to=ra_to,
                  orbits_only=orbits_only, targets=targets, catalog=catalog, minutes=minutes, limit=limit,
                  challenges=challenges, start=start, end=end, share_margin=share_margin)
-    if darkness is not None and darkness not in ("civil", "nautical", "astronomical"):
-        raise InputError(f"--darkness {darkness!r} is not one of civil, nautical, astronomical")
+    opt.check_darkness(darkness)
     if plan_file is not None:
         extra = [k for k, v in given.items() if v not in (None, False, [])]
         if extra:

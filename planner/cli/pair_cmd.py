@@ -21,8 +21,10 @@ from typing import List, Optional
 import typer
 
 from planner.cli import app
+from planner.cli import options as opt
 
 MAX_TABLE_ROWS = 2000
+TONIGHT = "Verdict tonight (needs a site and a telescope)"
 
 
 # -- input ----------------------------------------------------------------------
@@ -293,7 +295,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
             pts_e.append(e)
             pts_n.append(n)
     if rep["method"] == "linear" and rep["rho_arcsec"] is not None:
-        f, last = rep["first_measure"], rep["last_measure"]
+        f = rep["first_measure"]
         thf, thn = np.radians(f["theta_deg"]), np.radians(rep["theta_deg"])
         ax.plot([f["rho_arcsec"] * np.sin(thf), rep["rho_arcsec"] * np.sin(thn)],
                 [f["rho_arcsec"] * np.cos(thf), rep["rho_arcsec"] * np.cos(thn)], "--", color="gray",
@@ -344,8 +346,7 @@ def tonight_report(catalog, label, *, site=None, lat=None, lon=None, elevation=N
     from planner.plan.night import resolve_seeing
     from planner.plan.single import check_pair
 
-    if darkness is not None and darkness not in ("civil", "nautical", "astronomical"):
-        raise InputError(f"--darkness {darkness!r} is not one of civil, nautical, astronomical")
+    opt.check_darkness(darkness)
     if scope and len(scope) > 1 or aperture and len(aperture) > 1:
         raise InputError("splitplan pair judges one telescope; use 'splitplan night' for several")
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
@@ -414,7 +415,7 @@ def render_tonight(rep: dict) -> str:
 @app.command("pair", no_args_is_help=True)
 def pair(
     query: str = typer.Argument(..., help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272)."),
-    catalog: str = typer.Option("sample", "--catalog", help="sample (bundled), vizier (local snapshot) or a file path."),
+    catalog: str = opt.catalog("sample"),
     date: Optional[str] = typer.Option(None, "--date", help="Date YYYY-MM-DD (the evening, for the verdict); default now."),
     epoch: Optional[float] = typer.Option(None, "--epoch", help="Epoch as a year, e.g. 2031.5 (Besselian)."),
     years: Optional[str] = typer.Option(None, "--years", help="Table over FROM:TO[:STEP] years, e.g. 2020:2040:2."),
@@ -422,18 +423,18 @@ def pair(
     as_json: bool = typer.Option(False, "--json", help="Machine-readable output."),
     precession: str = typer.Option("j2000", "--precession",
                                    help="Precession of theta: j2000 (default), equinox or none."),
-    site: Optional[str] = typer.Option(None, "--site", help="Saved site profile.", rich_help_panel="Verdict tonight"),
-    lat: Optional[float] = typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel="Verdict tonight"),
-    lon: Optional[float] = typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel="Verdict tonight"),
-    elevation: Optional[float] = typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel="Verdict tonight"),
-    tz: Optional[str] = typer.Option(None, "--tz", help="IANA time zone, e.g. Europe/Berlin.", rich_help_panel="Verdict tonight"),
-    min_alt: Optional[float] = typer.Option(None, "--min-alt", help="Lowest useful altitude, deg (default 20).", rich_help_panel="Verdict tonight"),
-    scope: Optional[List[str]] = typer.Option(None, "--scope", help="Saved telescope profile.", rich_help_panel="Verdict tonight"),
-    aperture: Optional[List[float]] = typer.Option(None, "--aperture", help="Clear aperture, mm.", rich_help_panel="Verdict tonight"),
-    obstruction: Optional[List[float]] = typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio.", rich_help_panel="Verdict tonight"),
-    seeing: Optional[float] = typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel="Verdict tonight"),
-    steadiness: Optional[float] = typer.Option(None, "--steadiness", help="Steadiness 1-10 by eye (seeing table).", rich_help_panel="Verdict tonight"),
-    darkness: Optional[str] = typer.Option(None, "--darkness", help="civil, nautical (default) or astronomical.", rich_help_panel="Verdict tonight"),
+    site: Optional[str] = opt.site(TONIGHT),
+    lat: Optional[float] = opt.lat(TONIGHT),
+    lon: Optional[float] = opt.lon(TONIGHT),
+    elevation: Optional[float] = opt.elevation(TONIGHT),
+    tz: Optional[str] = opt.tz(TONIGHT),
+    min_alt: Optional[float] = opt.min_alt(TONIGHT),
+    scope: Optional[List[str]] = opt.scope(TONIGHT, many=False),
+    aperture: Optional[List[float]] = opt.aperture(TONIGHT, many=False),
+    obstruction: Optional[List[float]] = opt.obstruction(TONIGHT),
+    seeing: Optional[float] = opt.seeing(TONIGHT),
+    steadiness: Optional[float] = opt.steadiness(TONIGHT),
+    darkness: Optional[str] = opt.darkness(TONIGHT),
 ) -> None:
     """Separation and position angle of one pair today (or at --date/--epoch), with method and
     uncertainty; with a site and a telescope, also the verdict for tonight, the best time and

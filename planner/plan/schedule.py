@@ -96,7 +96,6 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
     """
     w = dict(SCHEDULE_WEIGHTS, **(weights or {}))
     ra = np.asarray(ra_deg, float)
-    dec = np.asarray(dec_deg, float)
     sc = np.asarray(score, float)
     best = np.asarray(best_utc, "datetime64[ns]")
     sets = np.asarray(set_utc, "datetime64[ns]")
