@@ -148,6 +148,15 @@ def local_hm(plan, t) -> str:
     return ts.tz_convert(plan.night.get("tz", "UTC")).strftime("%H:%M")
 
 
+def scope_label(sc: dict) -> str:
+    """'Club Dob (203 mm, obstruction 0.22)', or '102 mm, obstruction 0.00' when the
+    telescope has no name of its own."""
+    ap = float(sc.get("aperture_mm") or 0)
+    spec = f"{ap:g} mm, obstruction {float(sc.get('obstruction') or 0):.2f}"
+    name = str(sc.get("name") or "").strip()
+    return f"{name} ({spec})" if name and name != f"{ap:g} mm" else spec
+
+
 def header_lines(plan) -> list[str]:
     r = plan.request
     n = plan.night

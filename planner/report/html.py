@@ -13,7 +13,7 @@ import math
 import pandas as pd
 
 from planner.report import charts
-from planner.report.exports import local_hm
+from planner.report.exports import local_hm, scope_label
 from planner.report.safe import html_text as E
 
 CSS = """
@@ -134,8 +134,7 @@ def _matrix(plan) -> str:
 def _inputs(plan) -> str:
     r = plan.request
     s = r.site
-    scopes = "; ".join(f"{sc.get('name') or ''} {_f(sc.get('aperture_mm'), 'g')} mm"
-                       f" (obstr. {_f(sc.get('obstruction', 0), '.2f')})" for sc in r.scopes)
+    scopes = "; ".join(scope_label(sc) for sc in r.scopes)
     filt = ", ".join(f"{k}={v}" for k, v in (r.filters or {}).items()) or "none"
     items = [("site", f"{r.site_name or 'unnamed'}: {_f(s.get('lat_deg'), '.4f')}°, {_f(s.get('lon_deg'), '.4f')}°, "
                       f"{_f(s.get('elevation_m', 0), 'g')} m"),

@@ -13,7 +13,7 @@ import math
 import pandas as pd
 
 from planner.report import charts
-from planner.report.exports import local_hm
+from planner.report.exports import local_hm, scope_label
 from planner.report.safe import pdf_text as P
 
 A4_LANDSCAPE = (11.69, 8.27)
@@ -35,8 +35,7 @@ def _cover(plan, pdf, plt):
              fontsize=16, weight="bold", color="#1f3b57")
     lines = [
         f"Site: {s.get('lat_deg', 0):.4f}, {s.get('lon_deg', 0):.4f}, {s.get('elevation_m', 0):g} m, {s.get('tz', '')}",
-        "Telescopes: " + "; ".join(f"{sc.get('name') or ''} {float(sc.get('aperture_mm', 0)):g} mm "
-                                   f"(obstr. {float(sc.get('obstruction', 0)):.2f})" for sc in r.scopes),
+        "Telescopes: " + "; ".join(scope_label(sc) for sc in r.scopes),
         f"Seeing: {plan.seeing_origin}",
         f"Darkness: {r.darkness}; dark window {local_hm(plan, n.get('dark_start_utc'))} - "
         f"{local_hm(plan, n.get('dark_end_utc'))} local",
