@@ -265,6 +265,19 @@ def _orbit_choice(pairs: pd.DataFrame, orbits: pd.DataFrame, t_pair: np.ndarray,
     return best[["rho", "theta", "grade", "reference", "class"]].join(agg)
 
 
+def _linear_reasons(speed_arcsec_yr: np.ndarray) -> np.ndarray:
+    """The note for pairs on straight-line motion, with the speed to 0.001"/yr.
+
+    Formatted once per distinct rounded speed and gathered back (a full
+    catalogue has far fewer distinct speeds than pairs), so the cost does not
+    grow with a per-pair string operation."""
+    k = np.round(np.nan_to_num(np.asarray(speed_arcsec_yr, float)), 3)
+    uniq, inv = np.unique(k, return_inverse=True)
+    text = np.array([f"no orbit; straight-line motion from first to last measure ({v:.3f}\"/yr)" for v in uniq],
+                    dtype=object)
+    return text[inv.reshape(-1)]
+
+
 def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataFrame:
     """Separation, position angle, method and uncertainty of every pair at a date.
 
@@ -321,14 +334,12 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
     speed = lin["speed_arcsec_per_yr"].to_numpy(float)
     single = lin["single_epoch"].to_numpy(bool)
     dt_last = t - year_last
-    reason = np.where(
-        moving,
-        np.char.add(np.char.add("no orbit; straight-line motion from first to last measure (",
-                                np.char.mod("%.3f", np.nan_to_num(speed))), "\"/yr)").astype(object),
-        np.where(measured,
-                 np.where(single, "no orbit; last measure, motion unknown (single epoch)",
-                          "no orbit; last measure (no significant motion between first and last measure)"),
-                 "no orbit and no measure")).astype(object)
+    reason = np.where(measured,
+                      np.where(single, "no orbit; last measure, motion unknown (single epoch)",
+                               "no orbit; last measure (no significant motion between first and last measure)"),
+                      "no orbit and no measure").astype(object)
+    if moving.any():
+        reason[moving] = _linear_reasons(speed[moving])
 
     # -- orbits ---------------------------------------------------------------
     ch = _orbit_choice(pairs, orbits, t, precession)
@@ -371,10 +382,10 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
                                       _num(pairs, "pm1_dec_masyr"), t - COORD_EPOCH_YR)
     return pd.DataFrame({
         "rho_arcsec": rho, "theta_deg": theta,
-        "method": pd.array(method.astype(str), dtype="str"),
+        "method": pd.array(method, dtype="str"),
         "grade": grade, "rho_unc_arcsec": rho_unc, "theta_unc_deg": theta_unc,
         "years_since_measure": dt_last, "ra_date_deg": ra_d, "dec_date_deg": dec_d,
-        "orbit_reference": pd.array(reference.astype(str), dtype="str"),
+        "orbit_reference": pd.array(reference, dtype="str"),
         "n_orbits": n_orbits, "epoch_yr": t,
-        "reason": pd.array(reason.astype(str), dtype="str"),
+        "reason": pd.array(reason, dtype="str"),
     }, index=pairs.index)
