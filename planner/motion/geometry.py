@@ -327,17 +327,19 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
     rho_unc = lin["sigma_arcsec"].to_numpy(float, copy=True)
     theta_unc = np.where(moving, lin["theta_unc_deg"].to_numpy(float),
                          theta_unc_from(rho_unc, last_rho))
-    method = np.where(moving, "linear", np.where(measured, "last", "none")).astype(object)
+    method = np.full(n, "none", dtype=object)
+    method[measured] = "last"
+    method[moving] = "linear"
     grade = np.full(n, np.nan)
     reference = np.full(n, "", dtype=object)
     n_orbits = np.zeros(n, dtype=int)
+    by_orbit = np.zeros(n, dtype=bool)  # method is orbit or orbit-interferometric
     speed = lin["speed_arcsec_per_yr"].to_numpy(float)
     single = lin["single_epoch"].to_numpy(bool)
     dt_last = t - year_last
-    reason = np.where(measured,
-                      np.where(single, "no orbit; last measure, motion unknown (single epoch)",
-                               "no orbit; last measure (no significant motion between first and last measure)"),
-                      "no orbit and no measure").astype(object)
+    reason = np.full(n, "no orbit and no measure", dtype=object)
+    reason[measured & single] = "no orbit; last measure, motion unknown (single epoch)"
+    reason[measured & ~single] = "no orbit; last measure (no significant motion between first and last measure)"
     if moving.any():
         reason[moving] = _linear_reasons(speed[moving])
 
@@ -355,6 +357,7 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         theta_unc[i] = np.minimum(np.maximum(ch["spread_theta"].to_numpy(float), np.degrees(frac)), 180.0)
         visual = ch["class"].to_numpy(int) == 0
         method[i] = np.where(visual, "orbit", "orbit-interferometric")
+        by_orbit[i] = True
         grade[i] = g
         reference[i] = ch["reference"].to_numpy(object)
         n_orbits[i] = ch["n"].to_numpy(int)
@@ -368,14 +371,14 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         astro = p_pos[_num(orbits, "grade")[o_pos] == 9]
         has_astro = np.zeros(n, bool)
         has_astro[astro] = True
-        only_astro = has_astro & ~np.isin(method, ["orbit", "orbit-interferometric"])
+        only_astro = has_astro & ~by_orbit
         reason[only_astro] = "astrometric orbit only (grade 9, no separation); " + reason[only_astro].astype(str)
         incomplete = ~(orbits["complete"].fillna(False).to_numpy(bool)) if "complete" in orbits.columns \
             else np.zeros(len(orbits), bool)
         inc = p_pos[incomplete[o_pos]]
         has_inc = np.zeros(n, bool)
         has_inc[inc] = True
-        only_inc = has_inc & ~np.isin(method, ["orbit", "orbit-interferometric"])
+        only_inc = has_inc & ~by_orbit
         reason[only_inc] = "orbit with incomplete elements (not used); " + reason[only_inc].astype(str)
 
     ra_d, dec_d = apply_proper_motion(_num(pairs, "ra_deg"), _num(pairs, "dec_deg"), _num(pairs, "pm1_ra_masyr"),
