@@ -27,6 +27,10 @@ machine); the synthetic catalogue comes from ``bench_catalog.synthetic_wds``
 Peak memory: the maximum resident set size of each command's own process,
 from GNU ``/usr/bin/time -f %M`` (see :func:`peak_rss_mb`).
 
+Compute: ``plan_night`` in-process on the full-size catalogue and, in the same
+run, the astropy AltAz 48-step time-grid baseline over the same pairs and dark
+window; the ratio is printed (``--no-compute`` skips it; it needs about 1 GB).
+
 Imports: ``python -X importtime`` for ``import planner.cli`` (what ``--help``
 pays) and for the ``pair`` command; the script lists the heavy libraries
 (pandas, astropy, scipy, matplotlib, skyfield, astroquery) each one loads.
@@ -128,11 +132,70 @@ def import_profile(code_or_args: list[str], env: dict) -> tuple[float, list[str]
     return sum(c for c, _ in top), heavy, sorted(top, reverse=True)[:5]
 
 
+def plan_compute_vs_grid(wds: Path, env: dict, runs: int, steps: int = 48) -> None:
+    """In this process: ``plan_night`` on the full-size catalogue (compute only: the
+    catalogue is loaded and the one-off tables are warm) and, in the same run, the
+    astropy AltAz time-grid baseline of issue 4 (``steps`` instants across the same dark
+    window, the same pair positions, altitudes only); their ratio; peak traced memory."""
+    import tracemalloc
+
+    import numpy as np
+
+    os.environ["SPLITPLAN_HOME"] = env["SPLITPLAN_HOME"]
+    from planner.catalogs import load_catalog
+    from planner.plan.model import NightRequest
+    from planner.plan.night import plan_night
+
+    cat = load_catalog(str(wds))
+    site = {"lat_deg": 52.1873, "lon_deg": -2.4127, "elevation_m": 95.0, "tz": "Europe/London"}
+
+    def req():
+        return NightRequest(site=dict(site), scopes=[{"aperture_mm": 102.0}], date="2026-12-05", seeing_arcsec=1.5)
+
+    plan = plan_night(req(), catalog=cat)  # first call: one-off table loads
+    ts = []
+    for _ in range(runs):
+        t = time.perf_counter()
+        plan = plan_night(req(), catalog=cat)
+        ts.append(time.perf_counter() - t)
+    tracemalloc.start()
+    plan_night(req(), catalog=cat)
+    _, peak_ours = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+
+    from astropy import units as u
+    from astropy.coordinates import AltAz, EarthLocation, SkyCoord
+    from astropy.time import Time
+    from astropy.utils import iers
+
+    iers.conf.auto_download = False  # as bench_sky.py: offline, predictive IERS values of any age
+    iers.conf.auto_max_age = None
+    loc = EarthLocation.from_geodetic(site["lon_deg"] * u.deg, site["lat_deg"] * u.deg, site["elevation_m"] * u.m)
+    t0, t1 = plan.night["dark_start_utc"], plan.night["dark_end_utc"]
+    grid = t0 + (t1 - t0) // (steps - 1) * np.arange(steps)
+    ra = cat.pairs["ra_deg"].to_numpy(float)
+    dec = cat.pairs["dec_deg"].to_numpy(float)
+    tracemalloc.start()
+    t = time.perf_counter()
+    SkyCoord(ra * u.deg, dec * u.deg).transform_to(AltAz(obstime=Time(grid)[:, None], location=loc)).alt.deg
+    t_grid = time.perf_counter() - t
+    _, peak_grid = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    best = min(ts)
+    print(f"plan_night in-process, {len(cat.pairs):,} pairs (geometry, visibility, verdict, schedule): "
+          f"best {best:.3f} s, median {statistics.median(ts):.3f} s of {runs}; peak traced memory "
+          f"{peak_ours / 2**20:.0f} MB")
+    print(f"astropy AltAz grid baseline, same pairs, {steps} steps over the same dark window, altitudes only: "
+          f"{t_grid:.2f} s; peak traced memory {peak_grid / 2**20:.0f} MB")
+    print(f"ratio baseline / plan_night: {t_grid / best:.1f}x")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--runs", type=int, default=10)
     ap.add_argument("--pairs", type=int, default=157_000)
     ap.add_argument("--no-hyperfine", action="store_true")
+    ap.add_argument("--no-compute", action="store_true", help="skip the in-process plan_night vs astropy grid part")
     a = ap.parse_args()
     use_hf = shutil.which("hyperfine") is not None and not a.no_hyperfine
 
@@ -190,6 +253,9 @@ def main() -> None:
             print(f"imports, {label}: {total:.3f} s in top-level imports; heavy packages: "
                   f"{', '.join(heavy) or 'none'}; slowest: "
                   + ", ".join(f"{n} {c:.3f} s" for c, n in top))
+        if not a.no_compute:
+            print()
+            plan_compute_vs_grid(wds, env, max(3, a.runs // 2))
 
 
 if __name__ == "__main__":
