@@ -245,3 +245,34 @@ def test_console_script_runs_if_installed(bad):
                        cwd=str(bad["dir"]))
     line = _one_error_line(r.returncode, r.stderr, 2)
     assert "XYZ999" in line
+
+
+# -- arbitrary files as a catalogue, through the whole command ------------------------------
+
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_WDS_LIKE = st.sampled_from([
+    b"00000+0000STF   1AB      1900 2000   10  90  90   1.0   1.0  5.00  6.00 G0   +000-000 +000-000 "
+    b"+00 0000  N 000000.00+000000.0\n",
+    b"18055+0230STF2272AB",
+    b"   \t\r\n",
+    b"\xef\xbb\xbf",  # a UTF-8 byte-order mark
+])
+
+
+@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(content=st.one_of(st.binary(max_size=2000),
+                         st.lists(st.one_of(_WDS_LIKE, st.binary(max_size=140)), max_size=30).map(b"".join)))
+def test_any_file_as_catalogue_never_crashes(cli, tmp_path_factory, content):
+    """Whatever bytes the file holds, 'catalog show' either reads it (exit 0, skipped lines
+    listed) or refuses it in one line (exit 1 or 2); never a traceback or an internal error."""
+    p = tmp_path_factory.mktemp("fuzz") / "catalogue.txt"
+    p.write_bytes(content)
+    code, out, err = cli("catalog", "show", "--catalog", str(p))
+    assert "Traceback" not in err and "internal error" not in err, err
+    if code == 0:
+        assert "pairs:" in out
+    else:
+        _one_error_line(code, err, code)
+        assert code in (1, 2)
