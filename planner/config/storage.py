@@ -50,7 +50,9 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
         directory.mkdir(parents=True, exist_ok=True)
         fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=directory)
     except OSError as exc:
-        raise PlannerError(f"cannot write {path}: {exc.strerror or exc}") from None
+        blocker = next((q for q in (directory, *directory.parents) if q.is_file()), None)
+        why = f"{blocker} is a file, not a folder" if blocker is not None else (exc.strerror or exc)
+        raise PlannerError(f"cannot write {path}: {why}") from None
     try:
         # mkstemp creates the file readable by its owner only; give the result
         # the mode an ordinary write would have (an existing file keeps its
