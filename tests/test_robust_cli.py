@@ -132,6 +132,8 @@ CASES = [
     ("pair-nonsense", ["pair", "XYZ999"], 2, ["XYZ999", "WDS id", "18055+0230"]),
     ("pair-empty", ["pair", ""], 2, ["empty pair name", "WDS id"]),
     ("years-garbage", ["pair", "STF2272", "--years", "2020:2040:x"], 2, ["2020:2040:x", "FROM:TO"]),
+    ("years-not-finite", ["pair", "STF2272", "--years", "nan:2030"], 2, ["nan:2030", "FROM:TO"]),
+    ("years-infinite", ["pair", "STF2272", "--years", "inf:inf"], 2, ["inf:inf", "FROM:TO"]),
     ("years-too-many-rows", ["pair", "STF2272", "--years", "1:100000:0.001"], 2, ["--years", "at most"]),
     # -- catalogue paths ----------------------------------------------------------------------
     ("catalog-missing", ["catalog", "show", "--catalog", "{missing}"], 2, ["{missing}", "not found", "sample"]),

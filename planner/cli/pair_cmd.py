@@ -64,7 +64,7 @@ def parse_years(spec: str):
         nums = [float(p) for p in parts]
     except ValueError:
         nums = []
-    if len(nums) not in (2, 3):
+    if len(nums) not in (2, 3) or not all(np.isfinite(nums)):
         raise InputError(f"--years {spec!r} is not FROM:TO or FROM:TO:STEP, e.g. 2020:2040 or 2020:2040:0.5")
     start, stop = nums[0], nums[1]
     step = nums[2] if len(nums) == 3 else 1.0
