@@ -144,6 +144,8 @@ CASES = [
     ("catalog-csv", ["catalog", "show", "--catalog", "{csv}"], 2, ["{csv}", "neither a WDS", "ORB6"]),
     ("catalog-letter", ["pair", "STF2272", "--catalog", "{text}"], 2, ["{text}", "neither a WDS"]),
     ("night-catalog-directory", [*NIGHT[:-2], "--aperture", "102", "--catalog", "{dir}"], 2, ["{dir}", "directory"]),
+    ("catalog-unknown-home", ["catalog", "show", "--catalog", "~no_such_user_xyz/wds.txt"], 2,
+     ["~no_such_user_xyz/wds.txt", "full path"]),
     ("import-png", ["catalog", "import", "{png}"], 1, ["{png}", "binary"]),
     ("orbits-without-a-file", ["catalog", "show", "--orbits", "{text}"], 2, ["orbits file", "'sample'", "--catalog"]),
     # -- outputs ------------------------------------------------------------------------------

@@ -33,10 +33,19 @@ NINE = ord("9")
 # -- reading ------------------------------------------------------------------
 
 
+def user_path(path) -> Path:
+    """``path`` as a Path with ``~`` expanded; an unknown ``~user`` is a one-line InputError."""
+    try:
+        return Path(os.fspath(path)).expanduser()
+    except RuntimeError:  # pathlib: "Could not determine home directory"
+        raise InputError(f"cannot expand {os.fspath(path)!r}: no such user's home folder; "
+                         "give the full path") from None
+
+
 def read_bytes(path, what: str) -> tuple[Path, bytes]:
     """The raw bytes of ``path``, or a one-line error for a missing, unreadable,
     empty or binary file, or a directory."""
-    p = Path(os.fspath(path)).expanduser()
+    p = user_path(path)
     if not p.exists():
         raise InputError(f"{what} file {str(p)!r} does not exist")
     if p.is_dir():

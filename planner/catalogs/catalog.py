@@ -25,6 +25,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from planner.catalogs._fixed import user_path as _user_path
 from planner.errors import InputError, UnknownPairError
 from planner.schema import ORBIT_COLUMNS, PAIR_COLUMNS
 
@@ -180,7 +181,7 @@ def load_files(path, orbits=None, use_cache: bool = True) -> Catalog:
     from planner.catalogs.orb6 import read_orb6
     from planner.catalogs.wds import read_wds
 
-    path = Path(path).expanduser()
+    path = _user_path(path)
     kind = detect_kind(path)
     problems: list = []
     wds = orb = None
@@ -191,7 +192,7 @@ def load_files(path, orbits=None, use_cache: bool = True) -> Catalog:
         orb = cached_read(path, "orb6", read_orb6, use_cache)
         problems += _problems(orb, path)
     if orbits is not None:
-        op = Path(orbits).expanduser()
+        op = _user_path(orbits)
         if detect_kind(op) != "orb6":
             raise InputError(f"{str(op)!r} is not an ORB6 orbits text file")
         more = cached_read(op, "orb6", read_orb6, use_cache)
@@ -218,7 +219,7 @@ def load_catalog(spec: str = "sample", orbits=None) -> Catalog:
         from planner.catalogs.vizier import load_snapshot_or_fallback
 
         return load_snapshot_or_fallback()
-    p = Path(spec).expanduser()
+    p = _user_path(spec)
     if not p.exists():
         raise InputError(f"catalogue {spec!r} not found; use 'sample', 'vizier' or the path "
                          "of a WDS summary or ORB6 orbits file")

@@ -48,6 +48,7 @@ from planner.catalogs.catalog import Catalog, empty_table, merge, note
 from planner.catalogs.orb6 import (AXIS_FACTORS, PERIOD_FACTORS, TROPICAL_YEAR_D,
                                    besselian_from_jd, mark_preferred, split_designation)
 from planner.config.storage import atomic_write_bytes, atomic_write_text, user_dir
+from planner.catalogs._fixed import user_path as _user_path
 from planner.errors import CatalogError, NetworkError
 from planner.schema import ORBIT_COLUMNS, PAIR_COLUMNS
 
@@ -508,14 +509,14 @@ def import_files(path, orbits=None) -> dict:
     when it parses, store a copy as the current snapshot."""
     from planner.catalogs.catalog import detect_kind, load_files
 
-    path = Path(path).expanduser()
+    path = _user_path(path)
     cat = load_files(path, orbits=orbits, use_cache=False)  # raises if nothing parses
     files, info = {}, {}
     kind = detect_kind(path)
     files[f"{kind}.txt"] = path.read_bytes()
     info[kind] = {"name": f"{kind}.txt", "format": "text", "original": str(path)}
     if orbits is not None:
-        op = Path(orbits).expanduser()
+        op = _user_path(orbits)
         files["orb6.txt"] = op.read_bytes()
         info["orb6"] = {"name": "orb6.txt", "format": "text", "original": str(op)}
     today = datetime.now(timezone.utc).date().isoformat()
