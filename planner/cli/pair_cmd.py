@@ -236,6 +236,12 @@ def render_table(rows: list[dict]) -> str:
     return "\n".join(out) + "\n"
 
 
+def _plain(text: str) -> str:
+    """Catalogue text for a matplotlib label: a '$' would start mathtext (and a lone
+    one makes the drawing fail), so it is escaped; control characters are dropped."""
+    return "".join(ch for ch in str(text) if ch >= " ").replace("$", r"\$")
+
+
 def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") -> Path:
     """Draw the apparent orbit (or the measured motion) of one pair to PNG/SVG.
 
@@ -272,7 +278,8 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
         ts = epoch_yr + np.linspace(0.0, P, 721)
         g = orbit_grid(orb, ts, precession=precession)
         n, e = g["x_north_arcsec"][0], g["y_east_arcsec"][0]
-        ax.plot(e, n, "-", color="tab:blue", lw=1.2, label=f"orbit {o['reference']} (grade {o['grade']:.0f})")
+        ax.plot(e, n, "-", color="tab:blue", lw=1.2,
+                label=_plain(f"orbit {o['reference']} (grade {o['grade']:.0f})"))
         pts_e += list(e)
         pts_n += list(n)
         # periastron: the next passage after the epoch
@@ -317,7 +324,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
     ax.axvline(0, color="0.85", lw=0.6, zorder=0)
     ax.set_xlabel("east offset [arcsec]  (east is to the LEFT)")
     ax.set_ylabel("north offset [arcsec]  (north up)")
-    ax.set_title(f"{_name(rep)}  (WDS {rep['wds_id']})\nN up, E left: as on the sky without a diagonal",
+    ax.set_title(_plain(f"{_name(rep)}  (WDS {rep['wds_id']})") + "\nN up, E left: as on the sky without a diagonal",
                  fontsize=10)
     ax.annotate("N", xy=(0.06, 0.95), xycoords="axes fraction", ha="center", fontsize=11, weight="bold")
     ax.annotate("", xy=(0.06, 0.93), xytext=(0.06, 0.82), xycoords="axes fraction",
