@@ -18,6 +18,7 @@ no outside source is involved.
 from __future__ import annotations
 
 import errno
+import json
 import os
 from pathlib import Path
 
@@ -276,3 +277,37 @@ def test_damaged_plan_file_via_cli(cli, tmp_path):
     assert code == 1 and "damaged" in line and "moved aside" in line
     kept = list(tmp_path.glob("club.toml.corrupt-*"))
     assert len(kept) == 1 and kept[0].read_bytes() == damaged and not plan.exists()
+
+
+@pytest.mark.parametrize("failure", ["timeout", "http503", "truncated"])
+def test_failed_fetch_via_cli_keeps_the_local_copy(cli, monkeypatch, failure):
+    """'catalog fetch' failing (time-out, HTTP error, half a reply): one line, exit 1, and
+    the local copy imported before stays current, byte for byte."""
+    import requests
+
+    from planner.catalogs import vizier
+    from planner.catalogs.sample import sample_paths
+
+    stack, wds, orb = sample_paths()
+    with stack:
+        code, _, err = cli("catalog", "import", str(wds), "--orbits", str(orb))
+    assert code == 0, err
+    pointer = vizier.snapshot_root() / "current.json"
+    before = pointer.read_bytes()
+
+    def broken(self, method, url, *args, **kwargs):
+        if failure == "timeout":
+            raise requests.exceptions.ReadTimeout("read timed out")
+        r = requests.models.Response()
+        r.status_code = 503 if failure == "http503" else 200
+        r._content = b"<html>busy</html>" if failure == "http503" else b'<?xml version="1.0"?><VOTABLE><RESOURCE><TABLE>'
+        r.url = url
+        return r
+
+    monkeypatch.setattr(requests.Session, "request", broken)
+    code, out, err = cli("catalog", "fetch")
+    line = _one_line(err)
+    assert code == 1 and line.startswith("splitplan: error:") and ("VizieR" in line or "download" in line)
+    assert pointer.read_bytes() == before
+    code, out, err = cli("catalog", "show", "--catalog", "vizier", "--json")
+    assert code == 0 and err == "" and json.loads(out)["source"].startswith("imported")
