@@ -100,7 +100,7 @@ def test_steadiness_is_converted_by_the_table(cli):
     (["--aperture", "0"], "aperture"),
     (["--aperture", "102", "--obstruction", "1.5"], "obstruction"),
     (["--aperture", "102", "--darkness", "dusk"], "darkness"),
-    (["--aperture", "102", "--out", "plan.docx"], "extension"),
+    (["--aperture", "102", "--out", "plan.docx"], "unknown format"),
     (["--aperture", "102", "--ra-from", "25"], "hour"),
     (["--aperture", "102", "--start", "25:99"], "HH:MM"),
     (["--aperture", "102", "--targets", "/nonexistent/list.csv"], "target list"),

@@ -38,12 +38,35 @@ def test_plan_file_carries_version_and_source(tmp_path):
     assert d["format"] == "splitplan-plan" and d["scopes"] == [{"aperture_mm": 80.0}]
 
 
-def test_damaged_plan_file_is_kept_aside(tmp_path):
+def test_damaged_plan_file_is_reported_and_left_alone(tmp_path):
+    # a plan file handed in with --plan is the user's: reported, never moved or rewritten
     p = tmp_path / "club.toml"
-    p.write_bytes(b"\xff\xfe not text")
-    with pytest.raises(CorruptFileError, match="moved aside"):
+    p.write_bytes(b"# splitplan plan file\n\xff\xfe not text")
+    with pytest.raises(CorruptFileError, match="left as it is"):
         read_plan_file(p)
-    assert not p.exists() and len(list(tmp_path.glob("club.toml.corrupt-*"))) == 1
+    assert p.read_bytes() == b"# splitplan plan file\n\xff\xfe not text"
+    assert list(tmp_path.iterdir()) == [p]
+    other = tmp_path / "notes.txt"
+    other.write_bytes(b"\xff\xfe not text")
+    with pytest.raises(InputError, match="not a readable TOML file"):
+        read_plan_file(other)
+
+
+def test_save_plan_never_destroys_another_file(tmp_path):
+    from planner.config.planfile import write_plan_file
+
+    essay = tmp_path / "essay.toml"
+    essay.write_text("title = 'my essay'\n")
+    with pytest.raises(InputError, match="not a splitplan plan file"):
+        write_plan_file(essay, {"site": {}, "scopes": []}, "0.1.0", "test")
+    assert essay.read_text() == "title = 'my essay'\n"
+    # a damaged plan file of ours is moved aside (kept), then the new one is written
+    plan = tmp_path / "club.toml"
+    plan.write_bytes(b"# splitplan plan file\nbroken = = =\n")
+    write_plan_file(plan, {"site": {}, "scopes": []}, "0.1.0", "test")
+    kept = list(tmp_path.glob("club.toml.corrupt-*"))
+    assert len(kept) == 1 and kept[0].read_bytes() == b"# splitplan plan file\nbroken = = =\n"
+    assert read_plan_file(plan)["format"] == "splitplan-plan"
 
 
 def test_missing_or_directory_plan_file(tmp_path):

@@ -42,6 +42,7 @@ def apertures(
     from planner.cli.night_cmd import build_request
     from planner.errors import InputError
     from planner.plan.apertures import compare_apertures, plot_counts
+    from planner.report.safe import terminal_text
 
     opt.check_darkness(darkness)
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
@@ -61,7 +62,7 @@ def apertures(
         print(f"Pairs split, {span}; seeing {res['seeing_origin']}; obstruction {res['obstruction']:.2f}")
         print(f"{'aperture':>9} {'pairs':>6} {'added':>6}  first few added")
         for r in t.itertuples():
-            few = ", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else "")
+            few = terminal_text(", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else ""))
             print(f"{r.aperture_mm:>6g} mm {r.n_split:>6} {r.n_added:>+6}  {few}")
     if out is not None:
         from planner.config.storage import atomic_write_text

@@ -33,7 +33,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
     if session:
         from planner.config.planfile import read_plan_file
 
-        data = read_plan_file(session)
+        data = read_plan_file(session, what="session file")
         if isinstance(data.get("site"), dict):
             site_d, site_name = dict(data["site"]), str(data.get("site_name", ""))
         elif isinstance(data.get("site"), str):
@@ -56,7 +56,8 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
             raise InputError("give either --site NAME or --lat/--lon, not both")
         if tz is None:
             print("splitplan: note: no --tz given; local times are shown in UTC", file=sys.stderr)
-        site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0, "tz": tz or "UTC"}
+        site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0,
+                  "tz": "UTC" if tz is None else tz}
         site_name = ""
     elif site_d is not None:
         if elevation is not None:
@@ -91,15 +92,53 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
     for k in ("ra_from_h", "ra_to_h"):
         if k in filters and not 0 <= filters[k] <= 24:
             raise InputError(f"--{k[:-2].replace('_', '-')} {filters[k]} must be an hour of RA, 0-24")
+    check_filters(filters)
+    if share_margin is not None and not 0.5 <= share_margin <= 10:
+        raise InputError(f"--share-margin {share_margin:g} must be a margin between 0.5 and 10 (default 1.5)")
     if "targets" in filters and not Path(filters["targets"]).is_file():
         raise InputError(f"target list {targets} does not exist or is not a file")
     req = NightRequest(site=site_d, scopes=scopes, site_name=site_name, date=date,
                        seeing_arcsec=seeing, steadiness=steadiness, darkness=darkness or "nautical",
-                       catalog=catalog or "sample", minutes=minutes or 10.0, limit=limit,
+                       catalog=catalog or "sample", minutes=10.0 if minutes is None else minutes, limit=limit,
                        challenges=bool(challenges), start_local=start, end_local=end, filters=filters)
     if share_margin is not None:
         req.share_margin = share_margin
     return req
+
+
+def check_filters(filters: dict) -> None:
+    """One-line usage errors for filters that could only ever select nothing."""
+    import math
+
+    from planner.errors import InputError
+
+    for key, opt_name in (("sep_min_arcsec", "--sep-min"), ("sep_max_arcsec", "--sep-max"), ("dm_max", "--dm-max")):
+        v = filters.get(key)
+        if v is not None and (not math.isfinite(v) or v < 0):
+            raise InputError(f"{opt_name} {v:g} must be 0 or more")
+    lo, hi = filters.get("sep_min_arcsec"), filters.get("sep_max_arcsec")
+    if lo is not None and hi is not None and lo > hi:
+        raise InputError(f"--sep-min {lo:g} is larger than --sep-max {hi:g}")
+    if filters.get("constellations"):
+        from planner.plan.night import constellation_abbreviations
+
+        known = constellation_abbreviations()
+        bad = [c for c in filters["constellations"] if c.lower() not in known]
+        if bad:
+            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation abbreviation "
+                             "(e.g. Cyg, UMa, Boo)")
+
+
+OUT_FORMATS = (".csv", ".json", ".xml", ".vot", ".html", ".htm", ".pdf", ".txt")
+
+
+def check_out(out: Optional[Path]) -> None:
+    """Refuse an unknown --out extension before any work is done."""
+    from planner.errors import InputError
+
+    if out is not None and Path(out).suffix.lower() not in OUT_FORMATS:
+        raise InputError(f"--out {out}: unknown format {Path(out).suffix or '(none)'}; "
+                         f"use one of {', '.join(OUT_FORMATS)}")
 
 
 def emit(plan, as_json: bool, out: Optional[Path]) -> None:
@@ -164,6 +203,7 @@ def night(
                  orbits_only=orbits_only, targets=targets, catalog=catalog, minutes=minutes, limit=limit,
                  challenges=challenges, start=start, end=end, share_margin=share_margin)
     opt.check_darkness(darkness)
+    check_out(out)
     if plan_file is not None:
         extra = [k for k, v in given.items() if v not in (None, False, [])]
         if extra:

@@ -476,8 +476,11 @@ def pair(
             rep["tonight"] = tonight
         sys.stdout.write(json.dumps(rep, indent=2) + "\n")
         return
-    sys.stdout.write(render_report(rep))
+    from planner.report.safe import terminal_text
+
+    text = render_report(rep)
     if tonight is not None:
-        sys.stdout.write(render_tonight(tonight))
+        text += render_tonight(tonight)
     if table is not None:
-        sys.stdout.write("\n" + render_table(table))
+        text += "\n" + render_table(table)
+    sys.stdout.write(terminal_text(text))

@@ -123,12 +123,13 @@ def dump_toml(data: dict, header: str = "") -> str:
     return "\n".join(lines).lstrip("\n") + "\n"
 
 
-def read_toml(path: str | Path, what: str = "file") -> dict:
-    """Read a TOML file; a damaged one is quarantined and reported.
+def read_toml(path: str | Path, what: str = "file", keep_aside: bool = True) -> dict:
+    """Read a TOML file; a damaged one is reported (and, for the planner's own
+    saved files, ``keep_aside``, moved aside so it is never overwritten).
 
     Raises :class:`~planner.errors.InputError` when the file is missing or a
-    directory, :class:`~planner.errors.CorruptFileError` when it does not parse
-    (the file is moved aside first).
+    directory, :class:`~planner.errors.CorruptFileError` when it does not parse.
+    Files the user hands in (plan and session files) are never moved.
     """
     from planner.config.storage import quarantine
 
@@ -144,15 +145,47 @@ def read_toml(path: str | Path, what: str = "file") -> dict:
     try:
         return tomllib.loads(raw.decode("utf-8"))
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        moved = quarantine(p)
         reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
+        if not keep_aside:
+            if raw.startswith(PLAN_MARK):
+                raise CorruptFileError(f"{what} {p} is damaged ({reason}); it was left as it is") from None
+            raise InputError(f"{what} {p} is not a readable TOML file ({reason})") from None
+        moved = quarantine(p)
         raise CorruptFileError(f"{what} {p} is damaged ({reason}); it was moved aside to {moved.name} "
                                "and left untouched") from None
 
 
+#: first bytes of every plan file this tool writes
+PLAN_MARK = b"# splitplan plan file"
+
+
 def write_plan_file(path: str | Path, inputs: dict, version: str, catalog_source: str) -> Path:
-    """Write a plan file (atomic).  ``inputs`` is the dict of a run's inputs."""
-    from planner.config.storage import atomic_write_text
+    """Write a plan file (atomic).  ``inputs`` is the dict of a run's inputs.
+
+    An existing file at ``path`` is replaced only if it is a plan file of this
+    tool; a damaged one of ours is first moved aside (kept, never silently
+    overwritten); any other file is refused, so ``--save-plan`` cannot destroy
+    an unrelated file by a typo."""
+    import sys
+
+    from planner.config.storage import atomic_write_text, quarantine
+
+    p = Path(path)
+    if p.is_dir():
+        raise InputError(f"--save-plan {p} is a directory; give a file name ending in .toml")
+    if p.exists():
+        try:
+            head = p.read_bytes()[: len(PLAN_MARK)]
+        except OSError as exc:
+            raise InputError(f"cannot read {p} to check it before replacing it: {exc.strerror}") from None
+        if head != PLAN_MARK:
+            raise InputError(f"{p} exists and is not a splitplan plan file; choose another name")
+        try:
+            read_plan_file(p)
+        except CorruptFileError:
+            moved = quarantine(p)
+            print(f"splitplan: warning: the damaged plan file {p} was moved aside to {moved.name}",
+                  file=sys.stderr)
 
     created = datetime.now().astimezone().replace(microsecond=0).isoformat()
     doc = {"format": FORMAT_NAME, "format_version": FORMAT_VERSION,
@@ -164,14 +197,15 @@ def write_plan_file(path: str | Path, inputs: dict, version: str, catalog_source
     return atomic_write_text(path, dump_toml(doc, header=header))
 
 
-def read_plan_file(path: str | Path) -> dict:
-    """Read a plan or session file and check its format marker (when present)."""
-    data = read_toml(path, what="plan file")
+def read_plan_file(path: str | Path, what: str = "plan file") -> dict:
+    """Read a plan or session file and check its format marker (when present).
+    The file is the user's own: a damaged one is reported, never moved."""
+    data = read_toml(path, what=what, keep_aside=False)
     fmt = data.get("format")
     if fmt is not None and fmt != FORMAT_NAME:
-        raise InputError(f"plan file {path}: format {fmt!r} is not {FORMAT_NAME!r}")
+        raise InputError(f"{what} {path}: format {fmt!r} is not {FORMAT_NAME!r}")
     fv = data.get("format_version", FORMAT_VERSION)
     if not isinstance(fv, int) or fv > FORMAT_VERSION:
-        raise InputError(f"plan file {path}: format_version {fv!r} is newer than this splitplan "
+        raise InputError(f"{what} {path}: format_version {fv!r} is newer than this splitplan "
                          f"understands ({FORMAT_VERSION}); upgrade splitplan")
     return data

@@ -8,6 +8,10 @@ from dataclasses import dataclass, field
 
 from planner.errors import InputError
 
+#: the apertures the tool accepts, mm (from small finders to the largest amateur instruments)
+APERTURE_MIN_MM = 10.0
+APERTURE_MAX_MM = 10000.0
+
 KINDS = ("refractor", "newtonian", "sct", "maksutov", "cassegrain", "binocular", "other")
 #: other spellings accepted for ``kind``
 KIND_ALIASES = {
@@ -54,9 +58,10 @@ class Telescope:
                 raise InputError(f"{label} = {value!r} is not allowed; use {allowed}")
             return v
 
-        ap = num(self.aperture_mm, "aperture_mm", "a clear aperture between 10 and 10000 mm")
-        if not 10.0 <= ap <= 10000.0:
-            raise InputError(f"aperture_mm = {ap:g} is not allowed; use a clear aperture between 10 and 10000 mm")
+        ap = num(self.aperture_mm, "aperture_mm", f"a clear aperture between {APERTURE_MIN_MM:g} and {APERTURE_MAX_MM:g} mm")
+        if not APERTURE_MIN_MM <= ap <= APERTURE_MAX_MM:
+            raise InputError(f"aperture_mm = {ap:g} is not allowed; use a clear aperture between "
+                             f"{APERTURE_MIN_MM:g} and {APERTURE_MAX_MM:g} mm")
         object.__setattr__(self, "aperture_mm", ap)
         eps = num(self.obstruction, "obstruction", "a diameter ratio from 0 up to (not including) 1, e.g. 0.33")
         if not 0.0 <= eps < 1.0:

@@ -52,9 +52,13 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
     aps = sorted({float(a) for a in apertures_mm})
     if not aps:
         raise InputError("give at least one aperture in mm, e.g. 60 80 102 127")
+    from planner.optics.telescope import APERTURE_MAX_MM, APERTURE_MIN_MM
+
     for a in aps:
-        if not 10 <= a <= 3000:
-            raise InputError(f"aperture {a:g} mm is outside 10-3000 mm")
+        if not APERTURE_MIN_MM <= a <= APERTURE_MAX_MM:
+            raise InputError(f"aperture {a:g} mm is outside {APERTURE_MIN_MM:g}-{APERTURE_MAX_MM:g} mm")
+    if int(nights) < 1:
+        raise InputError(f"--nights {nights} must be 1 or more")
     if request.date is None:
         from planner.plan.night import parse_date
 

@@ -137,6 +137,9 @@ def session_window(ninfo: dict, site, local_date: str, start_local, end_local):
         a = max(a, at(start_local, a))
     if end_local:
         b = min(b, at(end_local, b))
+    if start_local and end_local and at(start_local, a) >= at(end_local, b):
+        raise InputError(f"--start {start_local} is not before --end {end_local} (evening times before "
+                         "midnight, morning times after)")
     return a, b
 
 
@@ -151,6 +154,15 @@ def constellation_of(ra_deg, dec_deg) -> np.ndarray:
         return np.array([], dtype=object)
     c = SkyCoord(ra=ra, dec=np.asarray(dec_deg, float), unit="deg", frame="icrs")
     return np.asarray(get_constellation(c, short_name=True), dtype=object)
+
+
+def constellation_abbreviations() -> set[str]:
+    """The 88 IAU constellation abbreviations, lower case (astropy's data file of
+    the IAU names, the same one ``get_constellation`` uses)."""
+    from importlib import resources
+
+    text = (resources.files("astropy.coordinates") / "data" / "constellation_names.dat").read_text()
+    return {ln.split()[0].lower() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")}
 
 
 def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFrame:

@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 
 from planner.config.storage import atomic_write_bytes, atomic_write_text
-from planner.report.safe import csv_cell
+from planner.report.safe import csv_cell, terminal_text
 
 #: the fields every JSON object carries (the stable contract) -- all of them
 #: are columns of the schedule table.
@@ -163,7 +163,9 @@ def header_lines(plan) -> list[str]:
     s = r.site
     out = [f"Night plan {n.get('local_date', r.date)}  site {r.site_name or ''} "
            f"({s.get('lat_deg', 0):.4f}, {s.get('lon_deg', 0):.4f}, {s.get('elevation_m', 0):g} m, {s.get('tz')})".replace("  site  (", "  site ("),
-           f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} local"
+           (f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} local"
+            if n.get("dark_start_utc") is not None and not pd.isna(n.get("dark_start_utc"))
+            else f"dark ({r.darkness}): none on this date")
            + (f"   Moon {100 * float(n['moon_illumination']):.0f}% lit" if n.get("moon_illumination") is not None else ""),
            f"seeing: {plan.seeing_origin}",
            f"catalogue: {plan.catalog_source}"]
@@ -200,7 +202,7 @@ def render_text(plan) -> str:
         out.append("")
         label = sp.name if sp.name == f"{float(t.get('aperture_mm', 0)):g} mm" else f"{sp.name}: {float(t.get('aperture_mm', 0)):g} mm"
         out.append(f"== {label}, obstruction {float(t.get('obstruction', 0)):.2f}"
-                   f" - {sp.summary}")
+                   + (f" - {sp.summary}" if sp.summary else ""))
         sched = sp.schedule
         if sched is None or len(sched) == 0:
             out.append("   nothing to schedule (no pair splits and stays up long enough in the dark window)")
@@ -224,4 +226,4 @@ def render_text(plan) -> str:
             out.append(f"   ... {len(plan.matrix) - 40} more (use --out FILE.csv/.html for all)")
     out.append("")
     out += [f"! {c}" for c in plan.cautions]
-    return "\n".join(out) + "\n"
+    return terminal_text("\n".join(out) + "\n")

@@ -11,6 +11,7 @@ never as markup or a spreadsheet formula.
   negative declination stays numeric.
 * PDF (matplotlib text): :func:`pdf_text` escapes ``$`` (which would start
   mathtext) and drops control characters.
+* Terminal: :func:`terminal_text` drops control characters (escape sequences).
 """
 
 from __future__ import annotations
@@ -34,8 +35,17 @@ def csv_cell(value):
     return value
 
 
+def terminal_text(value) -> str:
+    """Text for a terminal: control characters other than newline and tab
+    (e.g. ESC starting an escape sequence hidden in a catalogue or session
+    file name) become spaces."""
+    s = "" if value is None else str(value)
+    return "".join(ch if ch in "\n\t" or not (ch < " " or "\x7f" <= ch <= "\x9f") else " " for ch in s)
+
+
 def pdf_text(value) -> str:
     """Text for matplotlib: no mathtext, no control characters."""
     s = "" if value is None else str(value)
     s = "".join(ch if ch >= " " or ch == "\n" else " " for ch in s)
-    return s.replace("\\", "\\\\").replace("$", r"\$")
+    # Only "$" needs escaping: outside mathtext matplotlib draws a backslash as it is.
+    return s.replace("$", r"\$")
