@@ -233,13 +233,30 @@ def judge_scope(tel, table: pd.DataFrame, vis: pd.DataFrame, seeing: float, min_
     return out
 
 
+#: airmasses at which the scheduler pre-judges each candidate (1 to 10, geometric steps of ~10 %)
+REJUDGE_AIRMASS = np.geomspace(1.0, 10.0, 25)
+
+
 def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float, min_alt: float):
-    """Feasibility at a slot: still split at the slot's airmass."""
+    """Feasibility at a slot: still split at the slot's airmass.
+
+    Every candidate is judged once, in one vectorised call, at the airmasses of
+    :data:`REJUDGE_AIRMASS`; the largest airmass up to which it splits at every
+    grid step is its limit, and a slot is feasible when the slot's airmass is
+    within it.  The required separation grows and the companion fades with
+    airmass, so the verdict is monotone; the grid makes the test slightly
+    conservative (a pair is never scheduled where it would not split).  The
+    rows finally shown are judged again at their slot's own airmass."""
+    n, k = len(cand), len(REJUDGE_AIRMASS)
+    small = cand[["rho_arcsec", "mag1", "mag2"]].reset_index(drop=True)  # what the verdict reads
+    rep = small.iloc[np.repeat(np.arange(n), k)]
+    v = bridge.judge(tel, rep, seeing, np.tile(REJUDGE_AIRMASS, n))
+    ok = (v["verdict"].to_numpy() == "split").reshape(n, k)
+    n_ok = np.logical_and.accumulate(ok, axis=1).sum(axis=1)
+    x_max = np.where(n_ok > 0, REJUDGE_AIRMASS[np.maximum(n_ok - 1, 0)], 0.0)
 
     def fn(idx, alt_deg, when):
-        sub = cand.iloc[idx]
-        v = bridge.judge(tel, sub, seeing, bridge.airmass(np.maximum(alt_deg, 1.0)))
-        return v["verdict"].to_numpy() == "split"
+        return bridge.airmass(np.maximum(alt_deg, 1.0)) <= x_max[idx]
 
     return fn
 
