@@ -1,5 +1,9 @@
 """The small public Python API of splitplan.
 
+The four job-level functions are defined here; the main function of each layer
+(``read_wds``, ``orbit_positions``, ``visibility``, ``required_separation_arcsec``,
+``judge`` ...) can be imported from here as well.
+
 Everything heavy is imported inside the functions, so ``import planner.api``
 is cheap.  Example::
 
@@ -14,14 +18,14 @@ from __future__ import annotations
 
 
 def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
-               catalog="sample", minutes=10.0, limit=20, challenges=False, filters=None, site_name="",
+               catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
                start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5):
     """The night plan (a :class:`planner.plan.model.NightPlan`); see :mod:`planner.plan.night`.
 
     ``site``: dict with ``lat_deg``, ``lon_deg``, ``elevation_m``, ``tz`` (and
     optionally ``min_alt_deg``); ``scopes``: a list of dicts with ``name``,
     ``aperture_mm``, ``obstruction``; ``catalog``: a spec string or a loaded
-    Catalog.
+    Catalog; ``limit``: pairs per scope (None: as many as the night holds).
     """
     from planner.plan.model import NightRequest
     from planner.plan.night import plan_night as _plan
@@ -71,4 +75,27 @@ def write_report(plan, path):
     return _write(plan, path)
 
 
-__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report"]
+#: the layers underneath, importable from here too (loaded on first use)
+_LAYERS = {
+    "read_wds": "planner.catalogs", "read_orb6": "planner.catalogs", "load_sample": "planner.catalogs",
+    "load_catalog": "planner.catalogs", "find_pair": "planner.catalogs",
+    "orbit_positions": "planner.motion", "pair_geometry": "planner.motion",
+    "Site": "planner.sky", "night_for": "planner.sky", "visibility": "planner.sky", "altaz": "planner.sky",
+    "airmass": "planner.sky",
+    "Telescope": "planner.optics", "rayleigh_limit_arcsec": "planner.optics",
+    "dawes_limit_arcsec": "planner.optics", "sparrow_limit_arcsec": "planner.optics",
+    "required_separation_arcsec": "planner.optics",
+    "judge": "planner.verdict",
+}
+
+
+def __getattr__(name):
+    mod = _LAYERS.get(name)
+    if mod is None:
+        raise AttributeError(f"module 'planner.api' has no attribute {name!r}")
+    import importlib
+
+    return getattr(importlib.import_module(mod), name)
+
+
+__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report", *_LAYERS]
