@@ -235,7 +235,7 @@ def main() -> None:
             _, rss = peak_rss_mb(argv, env)
             results.append((label, t, rss, target))
         print()
-        print(f"| command | best | median | mean +- sd | peak RSS | target | met |")
+        print("| command | best | median | mean +- sd | peak RSS | target | met |")
         print("|---|---|---|---|---|---|---|")
         for label, t, rss, target in results:
             sd = f" +- {t['stddev']:.2f}" if "stddev" in t else ""

@@ -15,18 +15,13 @@ Measures (best of several repeats, wall clock):
 from __future__ import annotations
 
 import platform
-import time
 
 import numpy as np
+from _timing import best_and_median
 
 
 def best(fn, repeat=7):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), float(np.median(times))
+    return best_and_median(fn, repeat)
 
 
 def main() -> None:

@@ -11,15 +11,11 @@ import platform
 import time
 
 import numpy as np
+from _timing import best_and_median
 
 
 def best_of(fn, repeat=5):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), float(np.median(times))
+    return best_and_median(fn, repeat)
 
 
 def main():

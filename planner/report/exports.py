@@ -132,7 +132,8 @@ def write_text(plan, path) -> None:
 
 # -- terminal ----------------------------------------------------------------------
 
-def _fmt(v, spec: str, dash: str = "-") -> str:
+def fmt_num(v, spec: str, dash: str = "-") -> str:
+    """``v`` formatted with ``spec``, or ``dash`` when it is missing or not a number."""
     try:
         f = float(v)
     except (TypeError, ValueError):
@@ -181,15 +182,15 @@ def table_lines(sched: pd.DataFrame) -> list[str]:
         pid = f"{r.wds_id} {name}"[:22]
         how = {"orbit": "orbit", "orbit-interferometric": "orb-if", "linear": "linear",
                "last": "last"}.get(str(r.method), str(r.method))[:6]
-        mags = f"{_fmt(r.mag1, '.1f')}/{_fmt(r.mag2, '.1f')}"
-        power = f"{_fmt(r.power_min, '.0f')}-{_fmt(r.power_max, '.0f')}x"
+        mags = f"{fmt_num(r.mag1, '.1f')}/{fmt_num(r.mag2, '.1f')}"
+        power = f"{fmt_num(r.power_min, '.0f')}-{fmt_num(r.power_max, '.0f')}x"
         note = str(r.reason)
         if r.flag:
             note = f"[{r.flag}] " + note
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {_fmt(r.rho_arcsec, '6.2f')}\" "
-                     f"{_fmt(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {_fmt(r.alt_deg, '3.0f')} "
-                     f"{_fmt(r.airmass, '4.2f')} {_fmt(r.limit_arcsec, '5.2f')} {_fmt(r.margin, '4.1f')} "
-                     f"{_fmt(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+                     f"{fmt_num(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
+                     f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
+                     f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
     return lines
 
 

@@ -8,12 +8,11 @@ catalogue or user string goes through :func:`planner.report.safe.html_text`.
 from __future__ import annotations
 
 import base64
-import math
 
 import pandas as pd
 
 from planner.report import charts
-from planner.report.exports import local_hm, scope_label
+from planner.report.exports import fmt_num, local_hm, scope_label
 from planner.report.safe import html_text as E
 
 CSS = """
@@ -53,11 +52,7 @@ footer{color:var(--muted);font-size:12px;margin-top:22px}
 
 
 def _f(v, spec, dash="–"):
-    try:
-        x = float(v)
-    except (TypeError, ValueError):
-        return dash
-    return dash if math.isnan(x) else format(x, spec)
+    return fmt_num(v, spec, dash)
 
 
 def _png(fig) -> str:

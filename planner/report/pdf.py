@@ -8,24 +8,18 @@ catalogue/user string goes through :func:`planner.report.safe.pdf_text`.
 from __future__ import annotations
 
 import io
-import math
 
 import pandas as pd
 
 from planner.report import charts
-from planner.report.exports import local_hm, scope_label
+from planner.report.exports import fmt_num, local_hm, scope_label
 from planner.report.safe import pdf_text as P
 
 A4_LANDSCAPE = (11.69, 8.27)
 ROWS_PER_PAGE = 24
 
 
-def _f(v, spec, dash="-"):
-    try:
-        x = float(v)
-    except (TypeError, ValueError):
-        return dash
-    return dash if math.isnan(x) else format(x, spec)
+_f = fmt_num
 
 
 def _cover(plan, pdf, plt):
