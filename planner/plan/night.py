@@ -371,7 +371,11 @@ def sun_position(site, when_utc, ra_deg, dec_deg):
 # -- the whole plan ----------------------------------------------------------------
 
 def prepare(request: NightRequest, catalog=None):
-    """Everything before the telescopes: site, night, catalogue, geometry, filters, visibility."""
+    """Everything before the telescopes: site, night, catalogue, visibility, geometry, filters.
+
+    The returned table holds the pairs of every system that is up in the dark window for at
+    least one slot (``request.minutes``) -- or, with a target list, every listed pair -- with
+    tonight's geometry; ``vis`` is aligned with it."""
     if request.darkness not in DARKNESS:
         raise InputError(f"darkness {request.darkness!r} is not one of {', '.join(DARKNESS)}")
     if not (0 < float(request.minutes) <= 240):
@@ -398,17 +402,30 @@ def prepare(request: NightRequest, catalog=None):
     from planner.motion.epochs import to_epoch_yr
 
     epoch = float(to_epoch_yr(mid))
-    geo = bridge.geometry(cat, mid)
+    # Visibility first (it needs positions only), then the orbit geometry only for the systems
+    # that are up in the dark long enough: a pair that never is cannot be scheduled, and the
+    # geometry is the costlier step.  Whole systems (all rows of a WDS id) are kept together, so
+    # orbits link to pairs exactly as on the full catalogue.  With the observer's own target list
+    # every listed pair stays, so the plan can say which of them are not placed tonight.
+    pos_ok = np.isfinite(pairs["ra_deg"].to_numpy(float)) & np.isfinite(pairs["dec_deg"].to_numpy(float))
+    placed = pairs[pos_ok]
+    vis = bridge.visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, night)
+    vis = vis.reset_index(drop=True)
+    vis.index = placed.index
+    up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
+    if not (request.filters or {}).get("targets"):
+        wid = placed["wds_id"]
+        placed = placed[wid.isin(wid[up]).to_numpy()]
+    from types import SimpleNamespace
+
+    geo = bridge.geometry(SimpleNamespace(pairs=placed, orbits=getattr(cat, "orbits", None)), mid)
     keep_cols = [c for c in ("wds_id", "discoverer", "components", "ra_deg", "dec_deg", "mag1", "mag2",
                              "has_orbit", "note_flags") if c in pairs.columns]
     geo = geo.drop(columns=[c for c in geo.columns if c in keep_cols])
-    table = pd.concat([pairs[keep_cols], geo], axis=1)
-    ok = np.isfinite(table["rho_arcsec"].to_numpy(float)) & np.isfinite(table["ra_deg"].to_numpy(float))
-    table = table[ok]
+    table = pd.concat([placed[keep_cols], geo], axis=1)
+    table = table[np.isfinite(table["rho_arcsec"].to_numpy(float))]
     table = apply_filters(table, request.filters, cat)
-    vis = bridge.visibility(table["ra_deg"].to_numpy(float), table["dec_deg"].to_numpy(float), site, night)
-    vis = vis.reset_index(drop=True)
-    vis.index = table.index
+    vis = vis.loc[table.index]
     return site, night, ninfo, cat, table, vis, epoch
 
 
