@@ -105,12 +105,30 @@ def test_obstruction_helps_equal_pairs_slightly():
 @pytest.mark.parametrize("seeing", [0.0, 0.3])
 def test_obstruction_hurts_faint_companions(seeing):
     # methods-reference 1 notes: obstruction pushes light into the rings, hurting faint
-    # companions.  Checked for the obstructions of common reflectors and catadioptrics
-    # (0.25-0.5) and dm >= 3.  docs/optics.md lists the exceptions for eps <= 0.2.
+    # companions.  Checked for dm >= 3 and every obstruction from 0.1 to 0.5 (small ones
+    # through the generalised-Sparrow floor of methods-reference 2; docs/optics.md lists the
+    # exceptions that remain for eps = 0.1 in seeing of 0.5-1").
     for dm in (3.0, 3.5, 4.0, 5.0, 6.0, 7.0, 8.0, 10.0):
         clear = required_separation_arcsec(200, dm, 0.0, seeing)
-        for eps in (0.25, 0.33, 0.4, 0.5):
+        for eps in (0.1, 0.15, 0.2, 0.25, 0.33, 0.4, 0.5):
             assert required_separation_arcsec(200, dm, eps, seeing) > clear, (dm, eps)
+
+
+def test_unequal_floor_is_the_generalised_sparrow_curve():
+    # methods-reference section 2 [D]: a distinct secondary maximum first appears at
+    # 0.947, 1.11, 1.18, 1.22 and ~1.41-1.46 lambda/D for dm = 0, 0.5, 1, 2, 2.5-3 (clear
+    # aperture) and at 0.909, 1.05, 1.09, 1.40, 1.47 for eps = 0.33 (dm 0, 0.5, 1, 2, 3);
+    # recommended there as a hard floor.  In perfect air no criterion goes below it.
+    lod = 0.55e-3 / 200 * 206264.806  # lambda/D in arcsec, 550 nm, 200 mm
+    for dm, want in ((0, 0.947), (0.5, 1.11), (1, 1.18), (2, 1.22), (2.5, 1.41), (3, 1.46)):
+        assert sep.unequal_floor_lod(dm, 0.0) == pytest.approx(want, abs=1e-9)
+    for dm, want in ((0, 0.909), (0.5, 1.05), (1, 1.09), (2, 1.40), (3, 1.47)):
+        assert sep.unequal_floor_lod(dm, 0.33) == pytest.approx(want, abs=1e-9)
+    for crit in ("dawes", "rayleigh", "sparrow"):
+        for dm in (0.0, 0.5, 1.0, 2.0, 2.5, 3.0, 5.0):
+            for eps in (0.0, 0.2, 0.33):
+                got = required_separation_arcsec(200, dm, eps, criterion=crit) / lod
+                assert got >= sep.unequal_floor_lod(dm, eps) - 1e-9, (crit, dm, eps)
 
 
 def test_seeing_dominates_large_apertures():

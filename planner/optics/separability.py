@@ -443,7 +443,40 @@ def physical_separation_arcsec(aperture_mm, delta_mag, obstruction=0.0, seeing_a
     w = effective_blur_lod(aperture_mm, seeing_arcsec, airmass, wavelength_nm, steady_fraction,
                            dispersion_arcsec)
     rel = relative_separation(delta_mag, obstruction, w, key, contrast)
-    return rel * LIMIT_MODELS[key](aperture_mm, wavelength_nm)
+    sep = rel * LIMIT_MODELS[key](aperture_mm, wavelength_nm)
+    floor = unequal_floor_lod(delta_mag, obstruction) * lod_arcsec(aperture_mm, wavelength_nm)
+    return np.maximum(sep, floor)
+
+
+#: Floor for unequal pairs in perfect air, lambda/D: the separation at which the summed
+#: profile first shows a distinct secondary maximum ("generalised Sparrow"), computed in
+#: methods-reference section 2 [D] for a clear aperture and for eps = 0.33, and recommended
+#: there as a hard floor.  Rows: dm; columns: eps = 0, 0.33 (dm 2.5 for eps = 0.33 is the
+#: mean of its neighbours; dm 2.5-3 for eps = 0 is the quoted "1.41-1.46").
+_FLOOR_DM = np.array([0.0, 0.5, 1.0, 2.0, 2.5, 3.0])
+_FLOOR_EPS = np.array([0.0, 0.33])
+_FLOOR_LOD = np.array([[0.947, 0.909],
+                       [1.11, 1.05],
+                       [1.18, 1.09],
+                       [1.22, 1.40],
+                       [1.41, 1.435],
+                       [1.46, 1.47]])
+
+
+def unequal_floor_lod(delta_mag, obstruction=0.0):
+    """Smallest separation (lambda/D) at which a pair of magnitude difference ``delta_mag``
+    shows as two stars at all, whatever the criterion, seeing or steadiness: the
+    generalised-Sparrow values of methods-reference section 2, interpolated linearly in dm
+    and in eps (held beyond dm = 3, where the rings and the contrast rule take over, and
+    beyond eps = 0.33).  Never below the physical model's own table, only above it where the
+    table's dip-and-contrast rule would let a faint companion show inside the first dark
+    ring."""
+    dm = np.clip(np.abs(np.asarray(delta_mag, dtype=float)), 0.0, _FLOOR_DM[-1])
+    eps = np.clip(np.asarray(obstruction, dtype=float), 0.0, _FLOOR_EPS[-1])
+    a = np.interp(dm, _FLOOR_DM, _FLOOR_LOD[:, 0])
+    b = np.interp(dm, _FLOOR_DM, _FLOOR_LOD[:, 1])
+    t = eps / _FLOOR_EPS[-1]
+    return a + (b - a) * t
 
 
 if __name__ == "__main__":  # pragma: no cover
