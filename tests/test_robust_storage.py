@@ -196,6 +196,9 @@ def test_snapshot_switch_failing_keeps_the_previous_snapshot(tmp_path, monkeypat
     assert vizier.current_snapshot()["source"] == first["source"]
     assert len(load_catalog("vizier").pairs) == n_pairs
     assert _leftover_temps(vizier.snapshot_root()) == []
+    # and the half-written new snapshot folder is gone: only the first one is left
+    dirs = sorted(p.name for p in vizier.snapshot_root().iterdir() if p.is_dir())
+    assert dirs == [vizier.current_snapshot()["directory"]]
 
 
 def test_snapshot_import_via_cli_failing_is_one_line(cli, monkeypatch):

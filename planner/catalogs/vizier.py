@@ -403,15 +403,24 @@ def snapshot_root() -> Path:
 
 
 def write_snapshot(meta: dict, files: dict[str, bytes]) -> Path:
-    """Write a new snapshot directory, then switch ``current.json`` to it (atomically)."""
+    """Write a new snapshot directory, then switch ``current.json`` to it (atomically).
+
+    If anything fails before the switch, the half-written new directory is
+    removed and the previous snapshot stays current."""
+    import shutil
+
     root = snapshot_root()
     stamp = datetime.now(timezone.utc).strftime("%Y%m%dT%H%M%S%f")
     d = root / f"snapshot-{stamp}"
-    for name, data in files.items():
-        atomic_write_bytes(d / name, data)
     meta = dict(meta, directory=d.name)
-    atomic_write_text(d / "meta.json", json.dumps(meta, indent=1))
-    atomic_write_text(root / "current.json", json.dumps(meta, indent=1))
+    try:
+        for name, data in files.items():
+            atomic_write_bytes(d / name, data)
+        atomic_write_text(d / "meta.json", json.dumps(meta, indent=1))
+        atomic_write_text(root / "current.json", json.dumps(meta, indent=1))
+    except BaseException:
+        shutil.rmtree(d, ignore_errors=True)
+        raise
     return d
 
 
