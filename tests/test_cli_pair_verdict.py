@@ -89,3 +89,20 @@ def test_bad_verdict_options_one_line_exit_2(cli, args, words):
     assert code == 2
     lines = [ln for ln in err.splitlines() if ln.strip()]
     assert len(lines) == 1 and words in lines[0] and "Traceback" not in err
+
+
+def test_season_across_new_year_has_real_years():
+    # Castor (STF 1110 AB, RA 7h35m) transits at local midnight in mid-January (the Sun at
+    # RA ~19.6 h then; Astronomical Almanac low-precision Sun, checked against astropy above):
+    # seen from a December evening the season runs from early December into February of the
+    # next year, so the dates must carry both years and be in order.
+    import datetime as dt
+
+    from planner.plan.single import best_dates
+
+    r = best_dates(113.65, 31.89, 52.0, "2026-12-05")
+    a, k, b = (dt.date.fromisoformat(r[x]) for x in ("good_from", "midnight_transit", "good_to"))
+    assert a < k < b
+    assert (a.year, k.year, b.year) == (2026, 2027, 2027)
+    assert 80 <= (b - a).days <= 100  # +-3 h of transit at ~4 min a day: about +-45 days
+    assert k.month == 1 and 5 <= k.day <= 20

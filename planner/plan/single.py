@@ -10,7 +10,8 @@ vectorised over the days of the year.  Midnight is local mean solar
 midnight (the equation of time, at most about 16 minutes, is ignored).
 The *good season* is the span of dates on which the transit falls within
 ``season_hours`` (default 3) of midnight: the transit moves about 4 minutes
-a day, so roughly +-45 days.
+a day, so roughly +-45 days.  Both are taken in the year-long window centred
+on the evening asked about, so they are the nearest season, with real years.
 """
 
 from __future__ import annotations
@@ -35,40 +36,46 @@ def sun_ra_deg(jd) -> np.ndarray:
     return np.degrees(np.arctan2(np.cos(eps) * np.sin(lam), np.cos(lam))) % 360.0
 
 
-def best_dates(ra_deg: float, dec_deg: float, lat_deg: float, year: int, season_hours: float = 3.0) -> dict:
-    """Dates of ``year`` when the pair transits at local midnight, and the good season around it."""
-    days = np.arange(_dt.date(year, 1, 1).toordinal(), _dt.date(year + 1, 1, 1).toordinal())
+def best_dates(ra_deg: float, dec_deg: float, lat_deg: float, around, season_hours: float = 3.0) -> dict:
+    """The nearest date on which the pair transits at local midnight, and the good season around it.
+
+    ``around``: the evening's date (``datetime.date``, ISO text, or a year as int, meaning
+    1 July of that year).  The year-long window centred on it holds exactly one midnight
+    transit, so the answer is the nearest one (this season, whether just past or to come),
+    and the season is given with its real years even when it spans New Year.
+    """
+    if isinstance(around, int):
+        around = _dt.date(around, 7, 1)
+    elif isinstance(around, str):
+        around = _dt.date.fromisoformat(around[:10])
+    pad = 120  # days beyond the year-long window, so a season at its edge is not cut short
+    days = around.toordinal() + np.arange(-182 - pad, 183 + pad)
     jd = days - _dt.date(2000, 1, 1).toordinal() + 2451544.5 + 0.5  # ~ midnight of each date (UT)
     anti = (sun_ra_deg(jd) + 180.0) % 360.0
     off_h = ((ra_deg - anti + 180.0) % 360.0 - 180.0) / 15.0  # transit minus midnight, hours
-    k = int(np.argmin(np.abs(off_h)))
+    k = pad + int(np.argmin(np.abs(off_h[pad:-pad])))
     good = np.abs(off_h) <= season_hours
     max_alt = 90.0 - abs(lat_deg - dec_deg)
 
     def d(o):
         return _dt.date.fromordinal(int(o)).isoformat()
 
-    span = days[good]
-    # the season may wrap over New Year: report the run that contains the best date
-    run = _run_around(good, k)
+    a, b = _run_around(good, k)
     return {"midnight_transit": d(days[k]),
-            "good_from": d(days[run[0]]) if span.size else None,
-            "good_to": d(days[run[1]]) if span.size else None,
+            "good_from": d(days[a]) if good[k] else None,
+            "good_to": d(days[b]) if good[k] else None,
             "season_hours": season_hours, "max_alt_deg": float(max_alt),
             "ever_up": bool(max_alt > 0)}
 
 
 def _run_around(mask: np.ndarray, k: int) -> tuple[int, int]:
-    n = len(mask)
+    """First and last index of the run of True in ``mask`` that contains ``k``."""
     a = b = k
-    steps = 0
-    while mask[(a - 1) % n] and steps < n:
+    while a > 0 and mask[a - 1]:
         a -= 1
-        steps += 1
-    while mask[(b + 1) % n] and steps < n:
+    while b < len(mask) - 1 and mask[b + 1]:
         b += 1
-        steps += 1
-    return a % n, b % n
+    return a, b
 
 
 def _as_site(site):
@@ -168,7 +175,7 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
         "best_local": site.format_local(vis0["best_utc"]) if not pd.isna(vis0["best_utc"]) else None,
         "alt_best_deg": num(vis0["alt_best_deg"]), "airmass_best": num(vis0["airmass_best"]),
         "up_dark_min": num(vis0["up_dark_min"]), "observable": up_ok,
-        "best_dates": best_dates(ra, dec, site.lat_deg, int(date[:4])),
+        "best_dates": best_dates(ra, dec, site.lat_deg, date),
         "cautions": list(CAUTIONS[:2]),
     }
     if not up_ok:
