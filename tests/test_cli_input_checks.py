@@ -123,3 +123,12 @@ def test_pdf_text_keeps_backslashes_and_blocks_mathtext():
     shown, is_math = t._preprocess_math(t.get_text())
     plt.close(fig)
     assert (shown, is_math) == ("$\\a$ x\\y", False)
+
+
+def test_error_lines_stay_one_line_and_inert(cli):
+    # a pair name typed (or pasted) with a newline and an escape sequence: the error is still
+    # one line on stderr and carries no control character to the terminal
+    code, out, err = cli("pair", "STF\n2272\x1b[2J")
+    assert code == 2
+    line = one_error_line(err)
+    assert "\x1b" not in err and "no pair matches" in line

@@ -46,12 +46,6 @@ def _register() -> None:
                 raise
 
 
-def fail(message: str, code: int = 1) -> "typer.Exit":
-    """Print one error line on stderr and return an Exit to raise."""
-    print(f"splitplan: error: {message}", file=sys.stderr)
-    return typer.Exit(code)
-
-
 def _given_value(argv: list[str], param) -> str | None:
     """The text the user gave for option ``param`` (for the error line), if found."""
     if getattr(param, "multiple", False):  # a repeated option: which one is bad is not known
@@ -78,6 +72,14 @@ def _usage_line(exc, argv: list[str]) -> str:
     return f"{msg.rstrip('. ')} (see '{where} -h')"
 
 
+def _say(line: str) -> None:
+    """Print one diagnostic line on stderr.  Any control character in it (a newline or an
+    escape sequence inside a file name, pair name or catalogue text the user passed) becomes
+    a space, so the message stays one line and cannot drive the terminal."""
+    clean = "".join(" " if (ch < " " or "\x7f" <= ch <= "\x9f") else ch for ch in str(line))
+    print(clean, file=sys.stderr)
+
+
 def main(argv: list[str] | None = None) -> None:
     """Console-script entry point.
 
@@ -99,34 +101,34 @@ def main(argv: list[str] | None = None) -> None:
     except PlannerError as exc:
         if debug:
             raise
-        print(f"splitplan: error: {exc}", file=sys.stderr)
+        _say(f"splitplan: error: {exc}")
         sys.exit(exc.exit_code)
     except NoArgsIsHelpError as exc:  # the help has been printed already
         sys.exit(exc.exit_code)
     except UsageError as exc:
         if debug:
             raise
-        print(f"splitplan: error: {_usage_line(exc, args)}", file=sys.stderr)
+        _say(f"splitplan: error: {_usage_line(exc, args)}")
         sys.exit(exc.exit_code)
     except ClickException as exc:
         if debug:
             raise
-        print(f"splitplan: error: {' '.join(exc.format_message().split())}", file=sys.stderr)
+        _say(f"splitplan: error: {' '.join(exc.format_message().split())}")
         sys.exit(exc.exit_code)
     except (KeyboardInterrupt, Abort):
-        print("splitplan: interrupted", file=sys.stderr)
+        _say("splitplan: interrupted")
         sys.exit(130)
     except OSError as exc:
         if debug:
             raise
         what = f" {exc.filename}" if getattr(exc, "filename", None) else ""
-        print(f"splitplan: error: cannot access{what}: {exc.strerror or exc}", file=sys.stderr)
+        _say(f"splitplan: error: cannot access{what}: {exc.strerror or exc}")
         sys.exit(1)
     except Exception as exc:  # a bug: still one line, the traceback on request
         if debug:
             raise
         first = (str(exc).splitlines() or [""])[0][:200]
-        print(f"splitplan: internal error: {type(exc).__name__}: {first} "
-              "(please report it; SPLITPLAN_DEBUG=1 shows the traceback)", file=sys.stderr)
+        _say(f"splitplan: internal error: {type(exc).__name__}: {first} "
+             "(please report it; SPLITPLAN_DEBUG=1 shows the traceback)")
         sys.exit(1)
     sys.exit(rv if isinstance(rv, int) and not isinstance(rv, bool) else 0)
