@@ -127,15 +127,17 @@ def greedy_schedule(ra_deg, dec_deg, score, best_utc, set_utc, start_utc, end_ut
         if ranked_pool:
             # pool: the best-ranked pairs not yet observed and not past their chance
             cand = by_rank[remaining[by_rank]]
-            alt_c, _ = altaz_fn(cand, t)
+            alt_c, az_c = altaz_fn(cand, t)
             passed = (~np.isnat(best[cand])) & (best[cand] < t) & (alt_c < floor[cand])
             remaining[cand[passed]] = False
-            idx = np.sort(cand[~passed][: max(limit - len(rows), 0)])
-            if len(idx) == 0:
+            take = np.flatnonzero(~passed)[: max(limit - len(rows), 0)]
+            if len(take) == 0:
                 break
+            take = take[np.argsort(cand[take], kind="stable")]  # candidate order, as before
+            idx, alt0, az0 = cand[take], alt_c[take], az_c[take]  # positions at t computed once
         else:
             idx = np.flatnonzero(remaining)
-        alt0, az0 = altaz_fn(idx, t)
+            alt0, az0 = altaz_fn(idx, t)
         altm, _ = altaz_fn(idx, t + dur // 2)
         alt1, _ = altaz_fn(idx, t + dur)
         low = np.minimum(np.minimum(alt0, altm), alt1)
