@@ -76,8 +76,9 @@ def _say(line: str) -> None:
     """Print one diagnostic line on stderr.  Any control character in it (a newline or an
     escape sequence inside a file name, pair name or catalogue text the user passed) becomes
     a space, so the message stays one line and cannot drive the terminal."""
-    clean = "".join(" " if (ch < " " or "\x7f" <= ch <= "\x9f") else ch for ch in str(line))
-    print(clean, file=sys.stderr)
+    from planner.report.safe import terminal_text
+
+    print(terminal_text(line, one_line=True), file=sys.stderr)
 
 
 def main(argv: list[str] | None = None) -> None:

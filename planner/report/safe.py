@@ -35,12 +35,13 @@ def csv_cell(value):
     return value
 
 
-def terminal_text(value) -> str:
-    """Text for a terminal: control characters other than newline and tab
-    (e.g. ESC starting an escape sequence hidden in a catalogue or session
-    file name) become spaces."""
+def terminal_text(value, one_line: bool = False) -> str:
+    """Text for a terminal: control characters (e.g. ESC starting an escape
+    sequence hidden in a catalogue or session file name) become spaces; newline
+    and tab are kept unless ``one_line``."""
     s = "" if value is None else str(value)
-    return "".join(ch if ch in "\n\t" or not (ch < " " or "\x7f" <= ch <= "\x9f") else " " for ch in s)
+    keep = "" if one_line else "\n\t"
+    return "".join(ch if ch in keep or not (ch < " " or "\x7f" <= ch <= "\x9f") else " " for ch in s)
 
 
 def pdf_text(value) -> str:
