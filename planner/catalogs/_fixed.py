@@ -15,7 +15,6 @@ single correctly rounded division, so it equals Python's ``float(text)``.
 
 from __future__ import annotations
 
-import os
 from pathlib import Path
 
 import numpy as np
@@ -34,26 +33,20 @@ NINE = ord("9")
 
 
 def user_path(path) -> Path:
-    """``path`` as a Path with ``~`` expanded; an unknown ``~user`` is a one-line InputError."""
-    try:
-        return Path(os.fspath(path)).expanduser()
-    except RuntimeError:  # pathlib: "Could not determine home directory"
-        raise InputError(f"cannot expand {os.fspath(path)!r}: no such user's home folder; "
-                         "give the full path") from None
+    """``path`` as a Path with ``~`` expanded (see :func:`planner.config.storage.user_path`)."""
+    from planner.config.storage import user_path as _up
+
+    return _up(path)
 
 
-def read_bytes(path, what: str) -> tuple[Path, bytes]:
+def read_bytes(path, what: str, kind: str = "catalogue") -> tuple[Path, bytes]:
     """The raw bytes of ``path``, or a one-line error for a missing, unreadable,
-    empty or binary file, or a directory."""
+    empty, oversized or binary file, a directory or a special file (FIFO,
+    device); read through :func:`planner.config.storage.read_user_file`."""
+    from planner.config.storage import read_user_file
+
     p = user_path(path)
-    if not p.exists():
-        raise InputError(f"{what} file {str(p)!r} does not exist")
-    if p.is_dir():
-        raise InputError(f"{str(p)!r} is a directory; give the path of a {what} text file")
-    try:
-        data = p.read_bytes()
-    except OSError as exc:
-        raise CatalogError(f"cannot read {what} file {str(p)!r}: {exc.strerror or exc}") from None
+    data = read_user_file(p, f"{what} file", kind)
     if not data.strip():
         raise CatalogError(f"{what} file {str(p)!r} is empty")
     if b"\x00" in data[:65536]:

@@ -25,7 +25,7 @@ def read_target_list(path) -> pd.DataFrame:
     (plus ``line_no``, 1-based, for messages)."""
     from planner.catalogs import _fixed as fx
 
-    p, data = fx.read_bytes(path, "target list")
+    p, data = fx.read_bytes(path, "target list", kind="target list")
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError:
@@ -33,8 +33,12 @@ def read_target_list(path) -> pd.DataFrame:
     rows, notes, nums = [], [], []
     reader = csv.reader(io.StringIO(text), skipinitialspace=True)
     first = True
-    for row in reader:
-        ln = reader.line_num
+    try:
+        parsed = [(reader.line_num, row) for row in reader]
+    except csv.Error as exc:  # e.g. a cell over the csv module's 128 KB field limit
+        raise InputError(f"target list {str(p)!r} line {reader.line_num}: not a readable CSV row "
+                         f"({exc}); give one pair name per line") from None
+    for ln, row in parsed:
         cells = [c.strip() for c in row]
         if not cells or not any(cells) or cells[0].startswith("#"):
             continue

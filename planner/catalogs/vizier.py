@@ -444,7 +444,9 @@ def current_snapshot() -> dict | None:
 
 def _read_vot(kind):
     def reader(path):
-        tables = parse_votable(Path(path).read_bytes(), kind)
+        from planner.config.storage import read_user_file
+
+        tables = parse_votable(read_user_file(path, "VizieR snapshot file", "catalogue"), kind)
         if kind == "wds":
             name = WDS_TABLE if WDS_TABLE in tables else max(tables, key=lambda k: len(tables[k]))
             return wds_from_table(tables[name])
@@ -517,16 +519,17 @@ def import_files(path, orbits=None) -> dict:
     """Parse a local WDS or ORB6 text file (and optional ORB6 orbits file) and,
     when it parses, store a copy as the current snapshot."""
     from planner.catalogs.catalog import detect_kind, load_files
+    from planner.config.storage import read_user_file
 
     path = _user_path(path)
     cat = load_files(path, orbits=orbits, use_cache=False)  # raises if nothing parses
     files, info = {}, {}
     kind = detect_kind(path)
-    files[f"{kind}.txt"] = path.read_bytes()
+    files[f"{kind}.txt"] = read_user_file(path, "catalogue file", "catalogue")
     info[kind] = {"name": f"{kind}.txt", "format": "text", "original": str(path)}
     if orbits is not None:
         op = _user_path(orbits)
-        files["orb6.txt"] = op.read_bytes()
+        files["orb6.txt"] = read_user_file(op, "ORB6 file", "catalogue")
         info["orb6"] = {"name": "orb6.txt", "format": "text", "original": str(op)}
     today = datetime.now(timezone.utc).date().isoformat()
     src = "imported " + " + ".join(f"{k.upper()} file {v['original']}" for k, v in info.items())

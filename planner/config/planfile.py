@@ -18,11 +18,12 @@ overwritten.
 from __future__ import annotations
 
 import math
+import os
 import tomllib
 from datetime import date, datetime
 from pathlib import Path
 
-from planner.errors import CorruptFileError, InputError
+from planner.errors import CorruptFileError, InputError, PlannerError
 
 FORMAT_NAME = "splitplan-plan"
 FORMAT_VERSION = 1
@@ -131,21 +132,17 @@ def read_toml(path: str | Path, what: str = "file", keep_aside: bool = True) -> 
     directory, :class:`~planner.errors.CorruptFileError` when it does not parse.
     Files the user hands in (plan and session files) are never moved.
     """
-    from planner.config.storage import quarantine
+    from planner.config.storage import quarantine, read_user_file, user_path
 
-    p = Path(path)
-    if not p.exists():
-        raise InputError(f"{what} {p} does not exist")
-    if p.is_dir():
-        raise InputError(f"{what} {p} is a directory; give a .toml file")
+    p = user_path(path)
+    raw = read_user_file(p, what, "toml")
     try:
-        raw = p.read_bytes()
-    except OSError as exc:
-        raise InputError(f"cannot read {what} {p}: {exc.strerror}") from None
-    try:
-        return tomllib.loads(raw.decode("utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
+        return tomllib.loads(raw.decode("utf-8-sig"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError, RecursionError) as exc:
+        if isinstance(exc, RecursionError):
+            reason = "nested too deeply"
+        else:
+            reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
         if not keep_aside:
             if raw.startswith(PLAN_MARK):
                 raise CorruptFileError(f"{what} {p} is damaged ({reason}); it was left as it is") from None
@@ -168,24 +165,33 @@ def write_plan_file(path: str | Path, inputs: dict, version: str, catalog_source
     an unrelated file by a typo."""
     import sys
 
-    from planner.config.storage import atomic_write_text, quarantine
+    from planner.config.storage import check_regular, locked, quarantine, read_user_file, user_path
 
-    p = Path(path)
+    p = user_path(path)
     if p.is_dir():
         raise InputError(f"--save-plan {p} is a directory; give a file name ending in .toml")
-    if p.exists():
-        try:
-            head = p.read_bytes()[: len(PLAN_MARK)]
-        except OSError as exc:
-            raise InputError(f"cannot read {p} to check it before replacing it: {exc.strerror}") from None
-        if head != PLAN_MARK:
-            raise InputError(f"{p} exists and is not a splitplan plan file; choose another name")
-        try:
-            read_plan_file(p)
-        except CorruptFileError:
-            moved = quarantine(p)
-            print(f"splitplan: warning: the damaged plan file {p} was moved aside to {moved.name}",
-                  file=sys.stderr)
+    with locked(p):
+        if p.exists() or p.is_symlink():
+            check_regular(p, "--save-plan")
+            try:
+                head = read_user_file(p, "--save-plan file", "toml")[: len(PLAN_MARK)]
+            except PlannerError as exc:
+                raise InputError(f"{p} cannot be checked before replacing it: {exc}") from None
+            if head != PLAN_MARK:
+                raise InputError(f"{p} exists and is not a splitplan plan file; choose another name")
+            if not os.stat(p).st_mode & 0o222:
+                raise InputError(f"--save-plan {p} is read-only; it is never replaced (choose another name)")
+            try:
+                read_plan_file(p)
+            except CorruptFileError:
+                moved = quarantine(p)
+                print(f"splitplan: warning: the damaged plan file {p} was moved aside to {moved.name}",
+                      file=sys.stderr)
+        return _write_plan(p, inputs, version, catalog_source)
+
+
+def _write_plan(p: Path, inputs: dict, version: str, catalog_source: str) -> Path:
+    from planner.config.storage import atomic_write_text
 
     created = datetime.now().astimezone().replace(microsecond=0).isoformat()
     doc = {"format": FORMAT_NAME, "format_version": FORMAT_VERSION,
@@ -194,7 +200,7 @@ def write_plan_file(path: str | Path, inputs: dict, version: str, catalog_source
     doc.update(inputs)
     header = ("splitplan plan file: every input of one night plan.\n"
               "Reproduce it with:  splitplan night --plan THIS_FILE")
-    return atomic_write_text(path, dump_toml(doc, header=header))
+    return atomic_write_text(p, dump_toml(doc, header=header))
 
 
 def read_plan_file(path: str | Path, what: str = "plan file") -> dict:

@@ -81,9 +81,20 @@ def _clean(kind: str, fields: dict) -> dict:
 
 
 def _check_name(name: str) -> str:
+    """A profile name: 1-80 characters, none of them a control character (C0,
+    DEL, C1), a format character (bidirectional overrides, zero-width marks),
+    a line or paragraph separator, or an undecodable byte from the command
+    line (``\\udcXX``), so a name can always be shown as it was typed."""
+    from planner.report.safe import hidden_characters
+
     name = str(name).strip()
-    if not name or len(name) > 80 or any(ord(c) < 32 for c in name):
-        raise InputError(f"profile name {name!r} must be 1-80 printable characters")
+    bad = hidden_characters(name)
+    if bad:
+        shown = ", ".join(f"U+{ord(c):04X}" for c in sorted(set(bad)))
+        raise InputError(f"profile name {ascii(name)} contains invisible or control characters "
+                         f"({shown}); use 1-80 printable characters")
+    if not name or len(name) > 80:
+        raise InputError(f"profile name {ascii(name)} must be 1-80 printable characters")
     return name
 
 
@@ -106,22 +117,28 @@ def validate(kind: str, fields: dict) -> dict:
 
 def add(kind: str, name: str, fields: dict, replace: bool = False) -> dict:
     """Save (or with ``replace`` overwrite) a site or scope profile."""
+    from planner.config.storage import locked
+
     name = _check_name(name)
     clean = validate(kind, fields)
-    entries = _load(kind)
-    if name in entries and not replace:
-        raise InputError(f"{kind} {name!r} already exists; use --replace to overwrite it")
-    entries[name] = clean
-    _save(kind, entries)
+    with locked(profile_path(kind)):  # read-modify-write: concurrent adds all keep their entry
+        entries = _load(kind)
+        if name in entries and not replace:
+            raise InputError(f"{kind} {name!r} already exists; use --replace to overwrite it")
+        entries[name] = clean
+        _save(kind, entries)
     return clean
 
 
 def remove(kind: str, name: str) -> None:
-    entries = _load(kind)
-    if name not in entries:
-        raise InputError(f"no saved {kind} called {name!r}; saved: {', '.join(entries) or 'none'}")
-    del entries[name]
-    _save(kind, entries)
+    from planner.config.storage import locked
+
+    with locked(profile_path(kind)):
+        entries = _load(kind)
+        if name not in entries:
+            raise InputError(f"no saved {kind} called {ascii(name)}; saved: {', '.join(entries) or 'none'}")
+        del entries[name]
+        _save(kind, entries)
 
 
 def list_profiles(kind: str) -> dict[str, dict]:

@@ -90,9 +90,12 @@ def load_scale(path: str | Path | None = None) -> tuple[dict[float, float], str]
         if path is not None:
             raise InputError(f"seeing table {p} does not exist")
         return dict(DEFAULT_SCALE), "default"
+    from planner.config.storage import read_user_file
+
+    raw = read_user_file(p, "seeing table", "toml")
     try:
-        data = tomllib.loads(p.read_bytes().decode("utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        data = tomllib.loads(raw.decode("utf-8-sig"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError, RecursionError) as exc:
         moved = quarantine(p)
         raise CorruptFileError(f"seeing table {p} is damaged ({exc}); moved aside to {moved.name}; "
                                "the default table applies until you write a new one") from None

@@ -33,6 +33,26 @@ JD_J2000 = 2451545.0
 JULIAN_YEAR_D = 365.25
 _JD_UNIX_EPOCH = 2440587.5  # 1970-01-01T00:00 UTC
 
+#: Epochs (Besselian years) the motion code accepts: orbits and linear
+#: motion are extrapolated at most a few thousand years (one home for the range).
+EPOCH_MIN_YR = -3000.0
+EPOCH_MAX_YR = 5000.0
+
+
+def check_epoch_yr(epoch_yr, what: str = "epoch"):
+    """``epoch_yr`` (float or array) if every value is a finite year from
+    :data:`EPOCH_MIN_YR` to :data:`EPOCH_MAX_YR`; else a one-line InputError
+    stating the range."""
+    from planner.errors import InputError
+
+    arr = np.asarray(epoch_yr, dtype=float)
+    bad = ~(np.isfinite(arr) & (arr >= EPOCH_MIN_YR) & (arr <= EPOCH_MAX_YR))
+    if bad.any():
+        first = arr[bad].flat[0]
+        raise InputError(f"{what} {first:g} is out of range; give a year from {EPOCH_MIN_YR:.0f} "
+                         f"to {EPOCH_MAX_YR:.0f}, such as 2031.5")
+    return epoch_yr
+
 
 def besselian_year_from_jd(jd):
     """Besselian year for a Julian date (Lieske 1979; SOFA ``epb``)."""
@@ -50,10 +70,49 @@ def julian_year_from_jd(jd):
 
 
 def jd_from_datetime64(t):
-    """Julian date of numpy ``datetime64`` value(s), read as UTC."""
-    t = np.asarray(t, dtype="datetime64[ns]")
-    ns = t.astype("int64").astype(float)
-    return _JD_UNIX_EPOCH + ns / 86400e9
+    """Julian date of numpy ``datetime64`` value(s), read as UTC; NaN for NaT.
+
+    Values are converted in their own unit when it is coarser than a
+    microsecond (microseconds span +/- 290,000 years), so a date such as
+    1600-01-01 is never squeezed into nanoseconds (which overflow outside
+    1678-2262)."""
+    t = np.asarray(t)
+    if t.dtype.kind != "M":
+        t = t.astype("datetime64[ns]")
+    unit = np.datetime_data(t.dtype)[0]
+    if unit in ("ns", "ps", "fs", "as"):
+        ticks, per_day = t.astype("datetime64[ns]").astype("int64"), 86400e9
+    else:
+        ticks, per_day = t.astype("datetime64[us]").astype("int64"), 86400e6
+    out = _JD_UNIX_EPOCH + ticks.astype(float) / per_day
+    return np.where(np.isnat(t), np.nan, out)
+
+
+def calendar_date_from_jd(jd: float) -> str:
+    """The proleptic Gregorian calendar date (UTC) of a Julian date, as
+    ``YYYY-MM-DD`` with astronomical year numbering (year 0 = 1 BC, written
+    ``-0001`` for 2 BC), for any JD >= 0 (4713 BC).
+
+    Integer algorithm of Fliegel & Van Flandern (1968, Communications of the
+    ACM 11, 657), which unlike :mod:`datetime` covers years before 1 AD."""
+    j = int(np.floor(float(jd) + 0.5))
+    if j < 0:
+        from planner.errors import InputError
+
+        raise InputError(f"Julian date {jd} is before JD 0 (4713 BC); no calendar date is given")
+    # floor division throughout; valid for j >= 0
+    a = j + 68569
+    b = (4 * a) // 146097
+    a = a - (146097 * b + 3) // 4
+    c = (4000 * (a + 1)) // 1461001
+    a = a - (1461 * c) // 4 + 31
+    d = (80 * a) // 2447
+    day = a - (2447 * d) // 80
+    a = d // 11
+    month = d + 2 - 12 * a
+    year = 100 * (b - 49) + c + a
+    ytxt = f"{year:04d}" if year >= 0 else f"-{-year:04d}"
+    return f"{ytxt}-{month:02d}-{day:02d}"
 
 
 def to_epoch_yr(epoch):
@@ -71,7 +130,7 @@ def to_epoch_yr(epoch):
     if isinstance(epoch, _dt.datetime):
         if epoch.tzinfo is not None:
             epoch = epoch.astimezone(_dt.timezone.utc).replace(tzinfo=None)
-        return float(besselian_year_from_jd(jd_from_datetime64(np.datetime64(epoch, "ns"))))
+        return float(besselian_year_from_jd(jd_from_datetime64(np.datetime64(epoch, "us"))))
     if isinstance(epoch, _dt.date):
         return float(besselian_year_from_jd(jd_from_datetime64(np.datetime64(epoch, "D"))))
     arr = np.asarray(epoch)

@@ -364,7 +364,9 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         reason[i] = np.where(ch["n"].to_numpy(int) > 1,
                              "orbit; uncertainty = spread of the pair's orbits or the grade floor, whichever is larger",
                              "orbit; uncertainty = floor for the orbit grade")
-        reason[i] = np.where(visual, reason[i], "interferometric orbit (grade 8); " + reason[i].astype(str))
+        # np.char.add: numpy 1.x has no "+" between text arrays
+        reason[i] = np.where(visual, reason[i],
+                             np.char.add("interferometric orbit (grade 8); ", reason[i].astype(str)))
     # pairs with only astrometric/incomplete orbits say so
     if orbits is not None and len(orbits) and n:
         o_pos, p_pos = _link_orbits(pairs, orbits)

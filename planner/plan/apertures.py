@@ -107,7 +107,7 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
             "table": pd.DataFrame(rows), "pairs": pairs.sort_values("first_aperture_mm", kind="stable")}
 
 
-def plot_counts(result: dict, path) -> None:
+def plot_counts(result: dict, path, force: bool = False) -> None:
     """Count of split pairs versus aperture (matplotlib; PNG, SVG or PDF by extension)."""
     import io
 
@@ -116,7 +116,7 @@ def plot_counts(result: dict, path) -> None:
     matplotlib.use("Agg", force=False)
     import matplotlib.pyplot as plt
 
-    from planner.config.storage import atomic_write_bytes
+    from planner.config.storage import write_output
 
     t = result["table"]
     fig, ax = plt.subplots(figsize=(6.4, 4.0), dpi=110)
@@ -134,4 +134,4 @@ def plot_counts(result: dict, path) -> None:
     ext = str(path).rsplit(".", 1)[-1].lower()
     fig.savefig(buf, format=ext if ext in ("png", "svg", "pdf") else "png")
     plt.close(fig)
-    atomic_write_bytes(path, buf.getvalue())
+    write_output(path, buf.getvalue(), force=force, option="--plot")

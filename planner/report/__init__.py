@@ -11,8 +11,11 @@ FORMATS = {".csv": "csv", ".json": "json", ".xml": "votable", ".vot": "votable",
            ".html": "html", ".htm": "html", ".pdf": "pdf", ".txt": "text"}
 
 
-def write_report(plan, path) -> str:
-    """Write ``plan`` to ``path`` in the format of its extension; returns the format name."""
+def write_report(plan, path, force: bool = False) -> str:
+    """Write ``plan`` to ``path`` in the format of its extension; returns the format name.
+
+    An existing file is replaced only if splitplan wrote it, or with ``force``
+    (never a read-only one); see :func:`planner.config.storage.check_output`."""
     from pathlib import Path
 
     from planner.errors import InputError
@@ -24,7 +27,7 @@ def write_report(plan, path) -> str:
                          f"use one of {', '.join(sorted(FORMATS))}")
     from planner.report import exports
 
-    getattr(exports, f"write_{fmt}")(plan, path)
+    getattr(exports, f"write_{fmt}")(plan, path, force=force)
     return fmt
 
 

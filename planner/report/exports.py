@@ -12,8 +12,8 @@ import math
 import numpy as np
 import pandas as pd
 
-from planner.config.storage import atomic_write_bytes, atomic_write_text
-from planner.report.safe import csv_cell, terminal_text
+from planner.config.storage import write_output
+from planner.report.safe import csv_cell, plain_text, terminal_text
 
 #: the fields every JSON object carries (the stable contract) -- all of them
 #: are columns of the schedule table.
@@ -41,6 +41,8 @@ def _clean(v):
         return int(v)
     if isinstance(v, (np.bool_,)):
         return bool(v)
+    if isinstance(v, str):
+        return plain_text(v)
     return v
 
 
@@ -61,8 +63,8 @@ def plan_json(plan) -> str:
     return json.dumps(records(plan.schedule), indent=1, ensure_ascii=False)
 
 
-def write_json(plan, path) -> None:
-    atomic_write_text(path, plan_json(plan) + "\n")
+def write_json(plan, path, force: bool = False) -> None:
+    write_output(path, (plan_json(plan) + "\n").encode("utf-8"), force=force)
 
 
 def _machine_frame(schedule: pd.DataFrame) -> pd.DataFrame:
@@ -73,15 +75,15 @@ def _machine_frame(schedule: pd.DataFrame) -> pd.DataFrame:
     return df
 
 
-def write_csv(plan, path) -> None:
+def write_csv(plan, path, force: bool = False) -> None:
     df = _machine_frame(plan.schedule)
     for c in df.columns:
         if df[c].dtype == object or pd.api.types.is_string_dtype(df[c]):
             df[c] = [csv_cell(v) if isinstance(v, str) else v for v in df[c]]
-    atomic_write_text(path, df.to_csv(index=False, float_format="%.6g"))
+    write_output(path, df.to_csv(index=False, float_format="%.6g").encode("utf-8"), force=force)
 
 
-def write_votable(plan, path) -> None:
+def write_votable(plan, path, force: bool = False) -> None:
     """VOTable (IVOA standard) via astropy, with units and the plan's inputs as PARAMs."""
     import io
 
@@ -98,8 +100,9 @@ def write_votable(plan, path) -> None:
         if pd.api.types.is_numeric_dtype(s) and not pd.api.types.is_bool_dtype(s):
             cols[c] = s.to_numpy(float)
         else:
-            cols[c] = np.array(["" if v is None or (not isinstance(v, str) and pd.isna(v)) else str(v)
-                                for v in s], dtype=str)
+            # XML 1.0 cannot carry most control characters: filter them.
+            cols[c] = np.array(["" if v is None or (not isinstance(v, str) and pd.isna(v))
+                                else plain_text(v) for v in s], dtype=str)
     t = Table(cols)
     for c, u in units.items():
         if c in t.colnames:
@@ -107,27 +110,27 @@ def write_votable(plan, path) -> None:
     t.meta["description"] = "splitplan night plan"
     vot = from_table(t)
     res = vot.resources[0]
-    res.description = (f"splitplan {plan.version} night plan for {plan.night.get('local_date', '')}; "
-                       f"catalogue: {plan.catalog_source}")
+    res.description = plain_text(f"splitplan {plan.version} night plan for "
+                                 f"{plan.night.get('local_date', '')}; catalogue: {plan.catalog_source}")
     buf = io.BytesIO()
     vot.to_xml(buf)
-    atomic_write_bytes(path, buf.getvalue())
+    write_output(path, buf.getvalue(), force=force)
 
 
-def write_html(plan, path) -> None:
+def write_html(plan, path, force: bool = False) -> None:
     from planner.report.html import render_html
 
-    atomic_write_text(path, render_html(plan))
+    write_output(path, render_html(plan).encode("utf-8"), force=force)
 
 
-def write_pdf(plan, path) -> None:
+def write_pdf(plan, path, force: bool = False) -> None:
     from planner.report.pdf import render_pdf
 
-    atomic_write_bytes(path, render_pdf(plan))
+    write_output(path, render_pdf(plan), force=force)
 
 
-def write_text(plan, path) -> None:
-    atomic_write_text(path, render_text(plan))
+def write_text(plan, path, force: bool = False) -> None:
+    write_output(path, render_text(plan).encode("utf-8"), force=force)
 
 
 # -- terminal ----------------------------------------------------------------------

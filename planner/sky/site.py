@@ -78,11 +78,11 @@ class Horizon:
         white space or a comma.  A bad line raises InputError naming the file
         and line number.
         """
-        p = Path(path)
+        from planner.config.storage import read_user_file, user_path
+
+        p = user_path(path)
         try:
-            text = p.read_text(encoding="utf-8")
-        except OSError as exc:
-            raise InputError(f"cannot read horizon file {str(p)!r}: {exc.strerror or exc}") from None
+            text = read_user_file(p, "horizon file", "horizon").decode("utf-8-sig")
         except UnicodeDecodeError:
             raise InputError(f"horizon file {str(p)!r} is not UTF-8 text") from None
         points = []
