@@ -374,14 +374,16 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         has_astro = np.zeros(n, bool)
         has_astro[astro] = True
         only_astro = has_astro & ~by_orbit
-        reason[only_astro] = "astrometric orbit only (grade 9, no separation); " + reason[only_astro].astype(str)
+        reason[only_astro] = np.char.add("astrometric orbit only (grade 9, no separation); ",
+                                         reason[only_astro].astype(str))
         incomplete = ~(orbits["complete"].fillna(False).to_numpy(bool)) if "complete" in orbits.columns \
             else np.zeros(len(orbits), bool)
         inc = p_pos[incomplete[o_pos]]
         has_inc = np.zeros(n, bool)
         has_inc[inc] = True
         only_inc = has_inc & ~by_orbit
-        reason[only_inc] = "orbit with incomplete elements (not used); " + reason[only_inc].astype(str)
+        reason[only_inc] = np.char.add("orbit with incomplete elements (not used); ",
+                                       reason[only_inc].astype(str))
 
     ra_d, dec_d = apply_proper_motion(_num(pairs, "ra_deg"), _num(pairs, "dec_deg"), _num(pairs, "pm1_ra_masyr"),
                                       _num(pairs, "pm1_dec_masyr"), t - COORD_EPOCH_YR)

@@ -50,13 +50,86 @@ class NightRequest:
 
     @classmethod
     def from_dict(cls, d: dict) -> "NightRequest":
+        """The request recorded in a plan file (a dict read from TOML).
+
+        Every field is checked for its *shape* (a table, a list of tables, a
+        number, a text, a true/false) before use, so a hand-edited file gives
+        one line naming the field; values are then checked by the objects
+        built from them."""
         from planner.errors import InputError
 
+        if not isinstance(d, dict):
+            raise InputError("a plan file must be a TOML document of key = value lines and tables")
         names = {f.name for f in fields(cls)}
         kw = {k: v for k, v in d.items() if k in names}
         if "site" not in kw or "scopes" not in kw:
             raise InputError("a plan file needs a [site] table and at least one [[scopes]] table")
+        for k, v in kw.items():
+            kw[k] = _shaped(k, v)
         return cls(**kw)
+
+
+_SHAPE_TEXT = {"number": "a number", "integer": "a whole number, e.g. 20",
+               "text": "a quoted text", "true/false": "true or false"}
+_FIELD_SHAPES = {"site_name": "text", "date": "text", "seeing_arcsec": "number",
+                 "steadiness": "number", "darkness": "text", "catalog": "text", "minutes": "number",
+                 "limit": "integer", "challenges": "true/false", "start_local": "text",
+                 "end_local": "text", "min_alt_deg": "number", "share_margin": "number"}
+_FILTER_SHAPES = {"mag_max": "number", "mag2_max": "number", "dm_max": "number",
+                  "sep_min_arcsec": "number", "sep_max_arcsec": "number", "ra_from_h": "number",
+                  "ra_to_h": "number", "orbits_only": "true/false", "targets": "text"}
+
+
+def _has_shape(v, shape: str) -> bool:
+    if shape == "number":
+        return isinstance(v, (int, float)) and not isinstance(v, bool)
+    if shape == "integer":
+        return isinstance(v, int) and not isinstance(v, bool)
+    if shape == "true/false":
+        return isinstance(v, bool)
+    return isinstance(v, str)
+
+
+def _shaped(key: str, v):
+    """``v`` if it has the shape plan-file field ``key`` needs; a TOML date
+    literal for ``date`` becomes its ISO text; else a one-line InputError."""
+    import datetime as dt
+
+    from planner.errors import InputError
+
+    def bad(what: str):
+        return InputError(f"plan file: {key} = {v!r} must be {what}")
+
+    if v is None:
+        return v
+    if key == "site":
+        if not isinstance(v, dict):
+            raise bad("a [site] table with lat_deg, lon_deg, elevation_m and tz")
+        return dict(v)
+    if key == "scopes":
+        if not isinstance(v, list) or not v or not all(isinstance(x, dict) for x in v):
+            raise InputError(f"plan file: scopes must be one or more [[scopes]] tables "
+                             f"(name, aperture_mm, obstruction), not {type(v).__name__} {v!r}"[:300])
+        return [dict(x) for x in v]
+    if key == "filters":
+        if not isinstance(v, dict):
+            raise bad("a [filters] table")
+        out = {}
+        for fk, fv in v.items():
+            if fk == "constellations":
+                if not (isinstance(fv, list) and all(isinstance(x, str) for x in fv)):
+                    raise InputError(f"plan file: filters.constellations = {fv!r} must be a list of "
+                                     'abbreviations, e.g. ["Oph", "Her"]')
+            elif fk in _FILTER_SHAPES and fv is not None and not _has_shape(fv, _FILTER_SHAPES[fk]):
+                raise InputError(f"plan file: filters.{fk} = {fv!r} must be {_SHAPE_TEXT[_FILTER_SHAPES[fk]]}")
+            out[fk] = fv
+        return out
+    if key == "date" and isinstance(v, dt.date) and not isinstance(v, dt.datetime):
+        return v.isoformat()
+    shape = _FIELD_SHAPES.get(key)
+    if shape is not None and not _has_shape(v, shape):
+        raise bad(_SHAPE_TEXT[shape])
+    return v
 
 
 FILTER_KEYS = ("mag_max", "mag2_max", "dm_max", "sep_min_arcsec", "sep_max_arcsec",
