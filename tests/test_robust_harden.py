@@ -238,7 +238,7 @@ def test_missing_folder_is_not_created_for_a_report(tmp_path):
     from planner.config.storage import write_output
 
     target = tmp_path / "no" / "such" / "plan.csv"
-    with pytest.raises(InputError, match="does not exist; create it first"):
+    with pytest.raises(PlannerError, match="does not exist; create it first"):
         write_output(target, b"x")
     assert not (tmp_path / "no").exists()
 

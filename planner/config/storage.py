@@ -216,7 +216,7 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes, make_dirs: bool = T
     path = Path(path)
     directory = path.parent if str(path.parent) else Path(".")
     if not make_dirs and not directory.is_dir():
-        raise InputError(f"cannot write {path}: the folder {directory} does not exist; create it first")
+        raise PlannerError(f"cannot write {path}: the folder {directory} does not exist; create it first")
     try:
         if make_dirs:
             directory.mkdir(parents=True, exist_ok=True)
@@ -323,9 +323,10 @@ def check_output(path, force: bool = False, option: str = "--out") -> Path:
     p = user_path(path)
     directory = p.parent if str(p.parent) else Path(".")
     if not directory.is_dir():
-        if directory.exists():
-            raise InputError(f"{option} {p}: {directory} is not a folder")
-        raise InputError(f"{option} {p}: the folder {directory} does not exist; create it first")
+        blocker = next((q for q in (directory, *directory.parents) if q.exists()), None)
+        if blocker is not None and not blocker.is_dir():
+            raise PlannerError(f"cannot write {p}: {blocker} is a file, not a folder")
+        raise PlannerError(f"cannot write {p}: the folder {directory} does not exist; create it first")
     try:
         st = os.stat(p)
     except FileNotFoundError:
