@@ -47,6 +47,8 @@ def read_bytes(path, what: str, kind: str = "catalogue") -> tuple[Path, bytes]:
 
     p = user_path(path)
     data = read_user_file(p, f"{what} file", kind)
+    if data.startswith(b"\xef\xbb\xbf"):  # a UTF-8 byte-order mark (some editors add one)
+        data = data[3:]
     if not data.strip():
         raise CatalogError(f"{what} file {str(p)!r} is empty")
     if b"\x00" in data[:65536]:
