@@ -141,11 +141,11 @@ def test_per_scope_and_pooled():
     es = entries_from(x1, y1, "4-inch") + [dict(e, scope=None, aperture_mm=203.0, obstruction=0.33)
                                             for e in entries_from(x2, y2)]
     cals = cal.fit_log(es)
-    assert [c.scope for c in cals] == ["4-inch", "203 mm (33% obstructed)"]
+    assert [c.scope for c in cals] == ["4-inch", "203 mm"]
     assert [c.split.n for c in cals] == [50, 30]
     pooled = cal.fit_log(es, per_scope=False)
     assert pooled[0].split.n == 80 and pooled[0].label == "all scopes"
-    assert "from 30 observations with the 203 mm (33% obstructed)" in cals[1].sentence()
+    assert "from 30 observations with the 203 mm" in cals[1].sentence()
 
 
 def test_the_fit_survives_the_log_and_drives_the_verdict(tmp_path):

@@ -171,6 +171,42 @@ def calibration_for(logbook, telescope: dict, scope_name: str = ""):
     return None
 
 
+#: values of ``--calibration`` (and ``NightRequest.calibration``)
+CALIBRATIONS = ("published", "mine")
+
+
+def calibrate(telescopes, mode: str | None, logbook=None):
+    """The telescopes with the observer's calibration attached, and the calibrations used.
+
+    ``mode``: 'published' (or None: nothing changes) or 'mine' (the newest fit in
+    the log for each telescope, by its name, else the pooled fit).  Returns
+    (telescopes, ((name, Calibration), ...)).  No fit stored: an error that says
+    how to make one."""
+    import dataclasses
+
+    if mode in (None, "published"):
+        return tuple(telescopes), ()
+    if mode != "mine":
+        raise InputError(f"--calibration {mode!r} is not one of {', '.join(CALIBRATIONS)}")
+    from planner.config.logbook import Logbook, default_path
+
+    if logbook is None:
+        if not default_path().exists():
+            raise InputError("--calibration mine: there is no observation log yet; record attempts with "
+                             "'splitplan log add' and fit them with 'splitplan log fit'")
+        with Logbook() as log:
+            return calibrate(telescopes, mode, log)
+    out, used = [], []
+    for tel in telescopes:
+        cal = calibration_for(logbook, {"aperture_mm": tel.aperture_mm}, tel.name)
+        if cal is None:
+            raise InputError("--calibration mine: no calibration in the log yet; run 'splitplan log fit'")
+        params = tuple(sorted(cal.chance_params().items()))
+        out.append(dataclasses.replace(tel, chance_params=params))
+        used.append((tel.name, cal))
+    return tuple(out), tuple(used)
+
+
 def done_pairs(logbook, telescope: dict, scope_name: str = "") -> set:
     """(wds_id, components) of the pairs logged as split (clean or split) with this telescope."""
     from planner.plan.calibration import SUCCESS
