@@ -292,3 +292,20 @@ def test_orb6_full_width_and_special_values_present_in_the_file():
     assert r["a_arcsec"] == pytest.approx(0.01431, rel=1e-12)
     assert r["t_peri_yr"] == pytest.approx(erfa.epb(2400000.0, 48397.3164), abs=1e-9)
     assert r["grade"] == 9 and r["hd"] == "224690" and r["hip"] == "2"
+
+
+@pytest.mark.parametrize("col", [23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98])
+def test_wds_separator_columns_are_not_part_of_any_number(col):
+    # published layout: single blank separators at 23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98
+    # (FORMATS A / wdsweb_format.txt).  They belong to no field, so a digit typed into one
+    # of them is ignored: the line is still read, with the same numbers.
+    line = _wds_rows()[1]
+    assert line[col - 1] == " "
+    probe = line[:col - 1] + "7" + line[col:]
+    base = parse_wds_lines([line[:130].encode()]).iloc[0]
+    df = parse_wds_lines([line[:130].encode(), probe[:130].encode()])
+    got = df[df["line_no"] == 2]
+    assert len(got) == 1, df.attrs["problems"]
+    row = got.iloc[0]
+    for key in [*WDS_NUMERIC, "mag1", "mag2"]:
+        assert same(row[key], base[key]), (col, key)

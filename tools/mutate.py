@@ -46,26 +46,24 @@ ROOT = Path(__file__).resolve().parents[1]
 
 #: The narrowest test files that exercise each module (the runner).
 TESTS = {
-    "planner/catalogs/wds.py": ["tests/test_catalog_oracles.py", "tests/test_catalog_wds.py",
-                                "tests/test_catalog_fuzz.py"],
-    "planner/catalogs/orb6.py": ["tests/test_catalog_oracles.py", "tests/test_catalog_orb6.py",
-                                 "tests/test_catalog_fuzz.py"],
-    "planner/optics/limits.py": ["tests/test_optics_limits.py", "tests/test_optics_outside.py"],
-    "planner/optics/rules.py": ["tests/test_optics_rules.py", "tests/test_optics_outside.py"],
+    "planner/catalogs/wds.py": ["tests/test_catalog_oracles.py", "tests/test_catalog_wds.py"],
+    "planner/catalogs/orb6.py": ["tests/test_catalog_oracles.py", "tests/test_catalog_orb6.py"],
+    "planner/optics/limits.py": ["tests/test_optics_limits.py", "tests/test_outside_values.py"],
+    "planner/optics/rules.py": ["tests/test_optics_rules.py", "tests/test_outside_values.py"],
     "planner/optics/seeing.py": ["tests/test_optics_seeing.py"],
     "planner/optics/separability.py": ["tests/test_optics_separability.py",
                                        "tests/test_optics_seeing.py"],
     "planner/optics/telescope.py": ["tests/test_optics_telescope.py"],
     "planner/optics/visibility_limit.py": ["tests/test_optics_visibility.py",
-                                           "tests/test_optics_outside.py"],
+                                           "tests/test_outside_values.py"],
     "planner/optics/figures.py": ["tests/test_optics_figures.py"],
-    "planner/sky/atmosphere.py": ["tests/test_sky_atmosphere.py"],
+    "planner/sky/atmosphere.py": ["tests/test_sky_atmosphere.py", "tests/test_outside_values.py"],
     "planner/sky/placement.py": ["tests/test_sky_altaz.py", "tests/test_sky_visibility.py"],
     "planner/motion/epochs.py": ["tests/test_motion_geometry.py", "tests/test_motion_epochs.py"],
     "planner/motion/geometry.py": ["tests/test_motion_geometry.py"],
     "planner/motion/kepler.py": ["tests/test_motion_kepler.py"],
     "planner/motion/orbits.py": ["tests/test_motion_orbits.py"],
-    "planner/verdict.py": ["tests/test_verdict.py"],
+    "planner/verdict.py": ["tests/test_verdict.py", "tests/test_outside_values.py"],
     "planner/plan/schedule.py": ["tests/test_plan_schedule.py"],
 }
 
