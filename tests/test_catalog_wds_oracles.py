@@ -1,4 +1,5 @@
-"""Field-by-field oracles for the WDS and ORB6 readers (issue 16 item 4).
+"""Field-by-field oracle for the WDS reader (issue 16 item 4); the ORB6 one is in
+test_catalog_orb6_oracles.py.
 
 Every numeric (and text) field the readers return is compared with plain Python
 slicing of the line at the *published* column positions -- not with the readers'
@@ -26,17 +27,14 @@ from __future__ import annotations
 
 import re
 
-import erfa
 import numpy as np
 import pytest
 from astropy.coordinates import Angle
 
 from conftest import reference_file
-from planner.catalogs.orb6 import read_orb6
 from planner.catalogs.wds import parse_wds_lines, read_wds
 
 WDS_FILE = reference_file("wds_rows_found.txt")
-ORB6_FILE = reference_file("orb6_orbits.txt")
 
 
 def field(line: str, first: int, last: int) -> str:
@@ -194,104 +192,6 @@ def test_wds_separation_columns_do_not_overlap_neighbours():
                     m1=((59, 63), "33.33"))
     row = parse_wds_lines([line.encode()]).iloc[0]
     assert (row["sep_first_arcsec"], row["sep_last_arcsec"], row["mag1"]) == (111.1, 222.2, 33.33)
-
-
-# -- ORB6 -------------------------------------------------------------------------
-
-#: published ORB6 columns (orb6format.txt; widths of 10-12 and 24 from the file's ruler)
-ORB6_NUMERIC = {
-    "incl_deg": (126, 133), "incl_err_deg": (135, 142),
-    "node_deg": (144, 151), "node_err_deg": (154, 161),
-    "ecc": (188, 195), "ecc_err": (197, 204),
-    "omega_deg": (206, 213), "omega_err_deg": (215, 222),
-    "equinox": (224, 227), "year_last_obs": (229, 232), "grade": (234, 234),
-    "ads": (46, 50),
-}
-#: unit codes -> factor to years / arcsec (orb6format.txt; day = 1/365.242198781 yr,
-#: the Besselian (tropical) year of ERFA's epb, IAU SOFA)
-P_UNIT = {"y": 1.0, "d": 1 / 365.242198781, "c": 100.0, "h": 1 / 24 / 365.242198781,
-          "m": 1 / 1440 / 365.242198781}
-A_UNIT = {"a": 1.0, "m": 1e-3, "M": 60.0, "u": 1e-6}
-
-
-def _orb6_lines():
-    return [ln for ln in ORB6_FILE.read_text().splitlines()[7:] if ln.strip()]
-
-
-def _t_peri_years(value: float, unit: str) -> float:
-    if unit == "d":          # truncated JD = JD - 2,400,000 (orb6format.txt)
-        return erfa.epb(2400000.0, value)
-    if unit == "m":          # MJD
-        return erfa.epb(2400000.5, value)
-    if unit == "c":
-        return value * 100.0
-    return value
-
-
-def test_orb6_every_field_of_every_line_equals_plain_slicing():
-    lines = _orb6_lines()
-    df = read_orb6(ORB6_FILE)
-    assert len(df) == len(lines) == 2096 and not df.attrs["problems"]
-    by_line = df.set_index(df["line_no"].astype(int))
-    first_line_no = ORB6_FILE.read_text().splitlines().index(lines[0]) + 1
-    checked = 0
-    for i, line in enumerate(lines):
-        row = by_line.loc[first_line_no + i]
-        for key, (a, b) in ORB6_NUMERIC.items():
-            assert same(row[key], num(wide(line, a, b))), (i, key, wide(line, a, b), row[key])
-        for key, (a, b) in {"mag1": (67, 71), "mag2": (74, 78)}.items():   # flags outside
-            assert same(row[key], num(field(line, a, b))), (i, key, field(line, a, b))
-        pu, au, tu = field(line, 93, 93).strip(), field(line, 115, 115).strip(), \
-            field(line, 175, 175).strip()
-        assert (row["period_unit"], row["a_unit"], row["t_peri_unit"]) == (pu, au, tu)
-        # published columns; a value may start one column early (ruler, see wide())
-        assert same(row["period_yr"], num(wide(line, 82, 92)) * P_UNIT.get(pu, 1.0)), (i, "P")
-        assert same(row["period_err_yr"], num(wide(line, 95, 104)) * P_UNIT.get(pu, 1.0))
-        assert same(row["a_arcsec"], num(wide(line, 106, 114)) * A_UNIT.get(au, 1.0)), (i, "a")
-        assert same(row["a_err_arcsec"], num(wide(line, 117, 124)) * A_UNIT.get(au, 1.0))
-        t = num(wide(line, 163, 174))
-        want_t = _t_peri_years(t, tu)
-        assert (np.isnan(want_t) and np.isnan(row["t_peri_yr"])) or \
-            row["t_peri_yr"] == pytest.approx(want_t, abs=1e-9), (i, "T")
-        t_err = num(wide(line, 177, 186))
-        t_err_factor = {"d": 1 / 365.242198781, "m": 1 / 365.242198781, "c": 100.0}.get(tu, 1.0)
-        assert same(row["t_peri_err_yr"], t_err * t_err_factor), (i, "T err")
-        ra, dec = sexagesimal_deg(field(line, 1, 18))
-        assert row["ra_deg"] == pytest.approx(ra, abs=1e-9) and \
-            row["dec_deg"] == pytest.approx(dec, abs=1e-9), i
-        assert row["wds_id"] == field(line, 20, 29)
-        assert row["hd"] == field(line, 52, 58).strip() and row["hip"] == field(line, 59, 65).strip()
-        assert row["node_flag"] == field(line, 152, 152).strip()
-        assert row["omega_flag"] == field(line, 214, 214).strip()
-        assert row["notes_flag"] == field(line, 236, 236).strip()
-        assert row["reference"] == field(line, 238, 245).strip()
-        assert row["plot_file"] == field(line, 247, 264).strip()
-        # magnitude flags: leading column 66 / 73, trailing 72 / 79 (orb6format.txt)
-        assert set(row["mag1_flag"]) <= set(field(line, 66, 66) + field(line, 72, 73)) - {" "}
-        assert set(row["mag2_flag"]) <= set(field(line, 73, 73) + field(line, 79, 79)) - {" "}
-        checked += 1
-    assert checked == 2096
-
-
-def test_orb6_full_width_and_special_values_present_in_the_file():
-    # the genuine file holds the hard cases; each is asserted so that the oracle above
-    # really exercised them (USNO ORB6 sample, values read off the lines)
-    df = read_orb6(ORB6_FILE)
-    assert (df["incl_deg"] < 0).sum() >= 1            # one negative inclination (Ghe2003)
-    assert (df["a_arcsec"] < 0).sum() >= 1            # HIP1997d, 02130+0851
-    assert set(df["period_unit"]) >= {"y", "d", "c", "h"}
-    assert set(df["a_unit"]) >= {"a", "m"} and set(df["t_peri_unit"]) >= {"y", "d"}
-    assert (df["node_flag"] == "*").sum() == 24       # FORMATS: 24 ascending-node flags
-    assert df["equinox"].isna().sum() == 863          # FORMATS: equinox blank in 863 rows
-    assert df["year_last_obs"].isna().sum() == 389    # FORMATS: last obs. blank in 389 rows
-    assert (df["mag1_flag"] != "").sum() > 0 and (df["mag2_flag"] != "").sum() > 0
-    # the first orbit line, read by eye: 000000.91-192955.8 00000-1930 LTT 9831, P = 499.7989 d,
-    # a = 14.31 mas, T = 48397.3164 (JD - 2,400,000), grade 9
-    r = df.iloc[0]
-    assert r["period_yr"] == pytest.approx(499.7989 / 365.242198781, rel=1e-12)
-    assert r["a_arcsec"] == pytest.approx(0.01431, rel=1e-12)
-    assert r["t_peri_yr"] == pytest.approx(erfa.epb(2400000.0, 48397.3164), abs=1e-9)
-    assert r["grade"] == 9 and r["hd"] == "224690" and r["hip"] == "2"
 
 
 @pytest.mark.parametrize("col", [23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98])
