@@ -473,3 +473,119 @@ def test_profile_name_with_invalid_utf8_is_one_line(tmp_path):
     lines = [ln for ln in err.splitlines() if ln.strip()]
     assert r.returncode == 2 and len(lines) == 1 and "internal" not in err, err
     assert "invisible or control" in lines[0]
+
+
+# -- through the command line ------------------------------------------------------------
+
+NIGHT = ["night", "--lat", "52.1873", "--lon", "-2.4127", "--tz", "Europe/London", "--date", "2026-12-05",
+         "--aperture", "102", "--seeing", "1.5", "--limit", "3"]
+
+
+def test_out_never_replaces_a_users_file_without_force(cli, tmp_path):
+    precious = tmp_path / "precious.csv"
+    precious.write_text("thesis\n")
+    code, out, err = cli(*NIGHT, "--out", str(precious))
+    assert code == 2 and "--force" in err and out == ""  # refused before any work
+    assert precious.read_text() == "thesis\n"
+    code, out, err = cli(*NIGHT, "--out", str(precious), "--force")
+    assert code == 0 and precious.read_text().startswith("section,")
+    code, out, err = cli(*NIGHT, "--out", str(precious))  # now ours: replaced without asking
+    assert code == 0, err
+
+
+@pytest.mark.parametrize("argv, name", [
+    (["pair", "STF2272", "--plot", "{f}"], "orbit.png"),
+    (["apertures", "60", "102", "--lat", "52", "--lon", "0", "--tz", "UTC", "--date", "2026-12-05",
+      "--plot", "{f}"], "counts.png"),
+    (["apertures", "60", "102", "--lat", "52", "--lon", "0", "--tz", "UTC", "--date", "2026-12-05",
+      "--out", "{f}"], "table.csv"),
+])
+def test_plot_and_table_never_replace_a_users_file(cli, tmp_path, argv, name):
+    f = tmp_path / name
+    f.write_bytes(b"my own picture")
+    code, out, err = cli(*[a.format(f=f) for a in argv])
+    assert code == 2 and "--force" in err, err
+    assert f.read_bytes() == b"my own picture"
+    code, out, err = cli(*[a.format(f=f) for a in argv], "--force")
+    assert code == 0 and f.read_bytes() != b"my own picture", err
+
+
+def test_pair_far_dates_through_the_command_line(cli):
+    code, out, err = cli("pair", "STF2272", "--date", "1600-01-01")
+    assert code == 0 and "date        1600-01-01" in out, (out, err)  # printed 2184-07-20 before
+    code, out, err = cli("pair", "STF2272", "--epoch", "1")
+    assert code == 0 and "epoch 1.000" in out, err  # OverflowError before
+    for args in (["--epoch", "6000"], ["--date", "9999-01-01"], ["--years=-4000:-3990"]):
+        code, out, err = cli("pair", "STF2272", *args)
+        assert code == 2 and "-3000 to 5000" in err and "internal" not in err, err
+
+
+def test_utf8_bom_does_not_cost_the_first_catalogue_row(cli, tmp_path):
+    src = Path(__file__).resolve().parents[1] / "catalogs_sample" / "wds_summary_rows.txt"
+    plain = tmp_path / "plain.txt"
+    plain.write_bytes(src.read_bytes())
+    bom = tmp_path / "bom.txt"
+    bom.write_bytes(b"\xef\xbb\xbf" + src.read_bytes())
+    _, a, _ = cli("catalog", "show", "--catalog", str(plain), "--json")
+    code, b, err = cli("catalog", "show", "--catalog", str(bom), "--json")
+    import json
+
+    assert code == 0 and json.loads(b)["pairs"] == json.loads(a)["pairs"] and json.loads(b)["problems"] == 0
+
+
+def test_skipped_catalogue_lines_are_mentioned_by_night_and_pair(cli, tmp_path):
+    src = Path(__file__).resolve().parents[1] / "catalogs_sample" / "wds_summary_rows.txt"
+    f = tmp_path / "wds.txt"
+    f.write_bytes(src.read_bytes() + b"18055+0230 this line is not a WDS summary row at all\n")
+    for argv in (["pair", "00000+4004", "--catalog", str(f)],
+                 ["night", "--catalog", str(f), *NIGHT[1:]]):
+        code, out, err = cli(*argv)
+        assert code == 0, err
+        assert "1 catalogue line(s) could not be read" in err and "catalog show" in err, err
+
+
+def test_profile_list_shows_no_escape_sequence_from_a_hand_edited_file(cli):
+    from planner.config.profiles import profile_path
+
+    path = profile_path("site")
+    path.write_text('[site."evil\\u001b]0;pwned\\u0007\\u202e"]\nlat_deg = 1.0\nlon_deg = 1.0\ntz = "UTC"\n')
+    for argv in (["profile", "site", "list"], ["profile", "site", "list", "--json"]):
+        code, out, err = cli(*argv)
+        assert code == 0 and "evil" in out and not HIDDEN.search(out), repr(out)
+
+
+def test_votable_cells_are_plain_numbers(hostile_plan, tmp_path):
+    """astropy 6.1.0 under numpy 2 wrote 'np.float64(1.5)' into cells (hence astropy>=6.1.1)."""
+    from planner.report import write_report
+
+    p = tmp_path / "plan.vot"
+    write_report(hostile_plan, p)
+    assert "np.float" not in p.read_text("utf-8")
+
+
+def test_ctrl_c_says_interrupted_and_exits_130(tmp_path):
+    import signal
+    import time
+
+    if sys.platform == "win32":
+        pytest.skip("SIGINT to a child process is POSIX")
+    env = dict(os.environ, PYTHONWARNINGS="ignore")
+    proc = subprocess.Popen([sys.executable, "-m", "planner", "apertures", "60", "80", "102", "127", "152",
+                             "--lat", "52", "--lon", "0", "--tz", "UTC", "--from", "2026-01-01",
+                             "--to", "2026-12-31", "--nights", "40"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=env,
+                            cwd=str(tmp_path))
+    time.sleep(3.0)  # well inside the work (imports and a year of nights)
+    proc.send_signal(signal.SIGINT)
+    out, err = proc.communicate(timeout=120)
+    assert proc.returncode == 130, (proc.returncode, err)
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    assert lines[-1] == "splitplan: interrupted" and "Traceback" not in err, err
+
+
+def test_library_warnings_do_not_leak(tmp_path):
+    """astropy warns when XDG_CONFIG_HOME names a missing folder; the tool stays quiet."""
+    env = {"XDG_CONFIG_HOME": str(tmp_path / "missing"), "XDG_CACHE_HOME": str(tmp_path / "missing2")}
+    r = _run(*NIGHT, timeout=300, cwd=str(tmp_path), env_extra=dict(env, PYTHONWARNINGS=""))
+    assert r.returncode == 0, r.stderr
+    assert "Warning" not in r.stderr and "warnings.warn" not in r.stderr, r.stderr

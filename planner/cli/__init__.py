@@ -49,6 +49,42 @@ def _say(line: str) -> None:
     print(terminal_text(line, one_line=True), file=sys.stderr)
 
 
+class _TerminalSafe:
+    """``sys.stdout`` with every text write passed through
+    :func:`planner.report.safe.terminal_text`: names from catalogues, profiles and
+    paths can never send escape sequences, bidi overrides or undecodable bytes to
+    the terminal (binary writes to ``.buffer`` are untouched)."""
+
+    def __init__(self, raw):
+        self._raw = raw
+
+    def write(self, s: str) -> int:
+        from planner.report.safe import terminal_text
+
+        self._raw.write(terminal_text(s))
+        return len(s)
+
+    def __getattr__(self, name):
+        return getattr(self._raw, name)
+
+
+def _route_warnings() -> None:
+    """Library warnings become one ``splitplan: warning:`` line each; the harmless
+    ones are silenced: astropy's note that an XDG folder it would use does not exist
+    (it then uses its default), and pandas' fragmentation hint (speed only)."""
+    import warnings
+
+    if sys.warnoptions:  # the user chose with -W / PYTHONWARNINGS
+        return
+    warnings.filterwarnings("ignore", message=r"XDG_(CONFIG|CACHE)_HOME is set")
+    warnings.filterwarnings("ignore", message=r"DataFrame is highly fragmented")
+
+    def show(message, category, filename, lineno, file=None, line=None):
+        _say(f"splitplan: warning: {' '.join(str(message).split())[:300]}")
+
+    warnings.showwarning = show
+
+
 def main(argv: list[str] | None = None) -> None:
     """Console-script entry point.
 
@@ -61,8 +97,14 @@ def main(argv: list[str] | None = None) -> None:
 
     args = list(sys.argv[1:] if argv is None else argv)
     debug = bool(os.environ.get("SPLITPLAN_DEBUG"))
+    saved_stdout = sys.stdout
     try:
-        rv = dispatch(command_tree(), args)
+        import warnings
+
+        sys.stdout = _TerminalSafe(saved_stdout)
+        with warnings.catch_warnings():  # the routing ends with the command
+            _route_warnings()
+            rv = dispatch(command_tree(), args)
     except PlannerError as exc:  # usage errors (UsageError) included: exit 2
         if debug:
             raise
@@ -84,4 +126,6 @@ def main(argv: list[str] | None = None) -> None:
         _say(f"splitplan: internal error: {type(exc).__name__}: {first} "
              "(please report it; SPLITPLAN_DEBUG=1 shows the traceback)")
         sys.exit(1)
+    finally:
+        sys.stdout = saved_stdout
     sys.exit(rv if isinstance(rv, int) and not isinstance(rv, bool) else 0)

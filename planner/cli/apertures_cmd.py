@@ -28,6 +28,7 @@ def arguments(p) -> None:
     g.add_argument("--plot", type=opt.path, metavar="FILE", help="Plot count versus aperture (.png, .svg, .pdf).")
     g.add_argument("--json", dest="as_json", action="store_true", help="Print the table as JSON.")
     g.add_argument("--out", type=opt.path, metavar="FILE", help="Write the table (.csv or .json).")
+    opt.force(g)
     opt.site(p.add_argument_group("Site"))
     f = p.add_argument_group("Filters")
     f.add_argument("--mag-max", type=float, metavar="MAG", help="Primary no fainter than this.")
@@ -48,6 +49,11 @@ def run(a) -> None:
     from planner.report.safe import terminal_text
 
     opt.check_darkness(darkness)
+    if out is not None and out.suffix.lower() not in (".csv", ".json"):
+        raise InputError(f"--out {out}: use .csv or .json for the aperture table")
+    if plot is not None and plot.suffix.lower() not in (".png", ".svg", ".pdf"):
+        raise InputError(f"--plot {plot}: use .png, .svg or .pdf")
+    out, plot = opt.check_outputs(a.force, out=out, plot=plot)
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,
@@ -68,22 +74,20 @@ def run(a) -> None:
             few = terminal_text(", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else ""))
             print(f"{r.aperture_mm:>6g} mm {r.n_split:>6} {r.n_added:>+6}  {few}")
     if out is not None:
-        from planner.config.storage import atomic_write_text
-        from planner.report.safe import csv_cell
+        from planner.config.storage import write_output
+        from planner.report.safe import csv_cell, plain_text
 
-        ext = out.suffix.lower()
-        if ext == ".json":
-            atomic_write_text(out, json.dumps(doc, indent=1, ensure_ascii=False) + "\n")
-        elif ext == ".csv":
-            rows = t.assign(added=[csv_cell("; ".join(a)) for a in t["added"]])
-            atomic_write_text(out, rows.to_csv(index=False))
+        if out.suffix.lower() == ".json":
+            text = plain_text(json.dumps(doc, indent=1, ensure_ascii=False)) + "\n"
         else:
-            raise InputError(f"--out {out}: use .csv or .json for the aperture table")
+            rows = t.assign(added=[csv_cell("; ".join(a)) for a in t["added"]])
+            text = rows.to_csv(index=False)
+        write_output(out, text.encode("utf-8"), force=a.force)
         print(f"splitplan: wrote {out}", file=sys.stderr)
     if plot is not None:
         if plot.suffix.lower() not in (".png", ".svg", ".pdf"):
             raise InputError(f"--plot {plot}: use .png, .svg or .pdf")
-        plot_counts(res, plot)
+        plot_counts(res, plot, force=a.force)
         print(f"splitplan: wrote {plot}", file=sys.stderr)
 
 

@@ -139,7 +139,7 @@ def check_out(out: Optional[Path]) -> None:
                          f"use one of {', '.join(OUT_FORMATS)}")
 
 
-def emit(plan, as_json: bool, out: Optional[Path]) -> None:
+def emit(plan, as_json: bool, out: Optional[Path], force: bool = False) -> None:
     from planner.report import write_report
     from planner.report.exports import plan_json, render_text
 
@@ -148,8 +148,16 @@ def emit(plan, as_json: bool, out: Optional[Path]) -> None:
     else:
         sys.stdout.write(render_text(plan))
     if out is not None:
-        fmt = write_report(plan, out)
+        fmt = write_report(plan, out, force=force)
         print(f"splitplan: wrote {fmt} plan to {out}", file=sys.stderr)
+
+
+def skipped_lines_note(n: int, catalog) -> None:
+    """One stderr line when ``n`` catalogue lines were skipped, and how to see them."""
+    if n:
+        spec = catalog or "sample"
+        print(f"splitplan: note: {n} catalogue line(s) could not be read and were skipped; "
+              f"'splitplan catalog show --catalog {spec}' lists them", file=sys.stderr)
 
 
 def arguments(p) -> None:
@@ -189,6 +197,7 @@ def arguments(p) -> None:
                    help="Print a JSON array, one object per scheduled pair.")
     o.add_argument("--out", type=opt.path, metavar="FILE",
                    help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt")
+    opt.force(o)
     o.add_argument("--save-plan", type=opt.path, metavar="FILE", help="Record every input in a plan file (TOML).")
     o.add_argument("--plan", dest="plan_file", type=opt.path, metavar="FILE",
                    help="Rerun the inputs recorded in a plan file.")
@@ -210,6 +219,7 @@ def run(a) -> None:
 
     opt.check_darkness(darkness)
     check_out(out)
+    (out,) = opt.check_outputs(a.force, out=out)
     if plan_file is not None:
         extra = [k for k, v in given.items() if v not in (None, False, [])]
         if extra:
@@ -218,12 +228,13 @@ def run(a) -> None:
     else:
         req = build_request(**given)
     plan = plan_night(req)
+    skipped_lines_note(plan.catalog_skipped, req.catalog)
     if save_plan is not None:
         from planner.config.planfile import write_plan_file
 
         write_plan_file(save_plan, plan.request.to_dict(), plan.version, plan.catalog_source)
         print(f"splitplan: saved the inputs to {save_plan} (rerun with --plan {save_plan})", file=sys.stderr)
-    emit(plan, as_json, out)
+    emit(plan, as_json, out, a.force)
 
 
 def request_from_plan(path):

@@ -71,6 +71,22 @@ def catalog(group, default: str | None = None) -> None:
                             + (f" (default {default})." if default else "."))
 
 
+def force(group) -> None:
+    """--force: replace an existing output file that splitplan did not write."""
+    group.add_argument("--force", action="store_true",
+                       help="Replace an existing --out/--plot file that splitplan did not write "
+                            "(a read-only file is never replaced).")
+
+
+def check_outputs(force: bool, **paths):
+    """Each output path (``--out``, ``--plot``) checked before any work, ``~``
+    expanded; returns them in order (None stays None)."""
+    from planner.config.storage import check_output
+
+    return [None if p is None else check_output(p, force=force, option=f"--{name}")
+            for name, p in paths.items()]
+
+
 def path(text: str) -> Path:
     """argparse type for file names."""
     return Path(text)

@@ -34,20 +34,18 @@ def resolve_epoch(date: Optional[str] = None, epoch: Optional[float] = None) -> 
     import datetime as dt
 
     from planner.errors import InputError
-    from planner.motion.epochs import to_epoch_yr, today_epoch_yr
+    from planner.motion.epochs import check_epoch_yr, to_epoch_yr, today_epoch_yr
 
     if date is not None and epoch is not None:
         raise InputError("give either --date or --epoch, not both")
     if epoch is not None:
-        if not (-3000.0 <= epoch <= 5000.0):
-            raise InputError(f"--epoch {epoch} is out of range; give a year such as 2031.5 (-3000 to 5000)")
-        return float(epoch)
+        return float(check_epoch_yr(epoch, "--epoch"))
     if date is not None:
         try:
             d = dt.date.fromisoformat(date.strip())
         except ValueError:
             raise InputError(f"--date {date!r} is not a date; use YYYY-MM-DD, e.g. 2031-07-02") from None
-        return float(to_epoch_yr(d))
+        return float(check_epoch_yr(to_epoch_yr(d), f"--date {date.strip()}: the epoch"))
     return today_epoch_yr()
 
 
@@ -68,6 +66,9 @@ def parse_years(spec: str):
     step = nums[2] if len(nums) == 3 else 1.0
     if step <= 0 or stop < start:
         raise InputError(f"--years {spec!r}: need FROM <= TO and a positive STEP")
+    from planner.motion.epochs import check_epoch_yr
+
+    check_epoch_yr([start, stop], f"--years {spec}: the year")
     n = int(np.floor((stop - start) / step + 1e-9)) + 1
     if n > MAX_TABLE_ROWS:
         raise InputError(f"--years {spec!r} gives {n} rows; at most {MAX_TABLE_ROWS} (use a larger STEP)")
@@ -185,7 +186,7 @@ _METHOD_TEXT = {
 
 def render_report(rep: dict) -> str:
     """Plain-text report of :func:`geometry_report`."""
-    from planner.motion.epochs import JD_B1900
+    from planner.motion.epochs import calendar_date_from_jd
 
     lines = []
     mags = ""
@@ -193,10 +194,8 @@ def render_report(rep: dict) -> str:
         mags = f"   mags {_f(rep['mag1'], '.2f', '?')} / {_f(rep['mag2'], '.2f', '?')}"
     lines.append(f"{_name(rep)}   WDS {rep['wds_id']}{mags}")
     # calendar date of the epoch (UTC, to the day)
-    import datetime as dt
-
-    day = dt.date(1899, 12, 31) + dt.timedelta(days=rep["jd"] - JD_B1900 + 0.81352)
-    lines.append(f"date        {day.isoformat()}  (epoch {rep['epoch_yr']:.3f}, Besselian year)")
+    day = calendar_date_from_jd(rep["jd"])
+    lines.append(f"date        {day}  (epoch {rep['epoch_yr']:.3f}, Besselian year)")
     if rep["rho_arcsec"] is None:
         lines.append(f"separation  unknown ({rep['reason']})")
     else:
@@ -240,7 +239,7 @@ def _plain(text: str) -> str:
     return "".join(ch for ch in str(text) if ch >= " ").replace("$", r"\$")
 
 
-def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") -> Path:
+def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000", force: bool = False) -> Path:
     """Draw the apparent orbit (or the measured motion) of one pair to PNG/SVG.
 
     Primary at the origin; north up and east to the LEFT, as the pair appears
@@ -256,7 +255,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
     import matplotlib.pyplot as plt
     import numpy as np
 
-    from planner.config.storage import atomic_write_bytes
+    from planner.config.storage import write_output
     from planner.errors import InputError
     from planner.motion import orbit_grid
 
@@ -334,7 +333,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
     buf = io.BytesIO()
     fig.savefig(buf, format=fmt, dpi=120, bbox_inches="tight")
     plt.close(fig)
-    return atomic_write_bytes(path, buf.getvalue())
+    return write_output(path, buf.getvalue(), force=force, option="--plot")
 
 
 # -- command -----------------------------------------------------------------------
@@ -427,6 +426,7 @@ def arguments(p) -> None:
     g.add_argument("--epoch", type=float, metavar="YEAR", help="Epoch as a year, e.g. 2031.5 (Besselian).")
     g.add_argument("--years", metavar="FROM:TO[:STEP]", help="Table over a range of years, e.g. 2020:2040:2.")
     g.add_argument("--plot", type=opt.path, metavar="FILE", help="Draw the apparent orbit to FILE.png or FILE.svg.")
+    opt.force(g)
     g.add_argument("--json", dest="as_json", action="store_true", help="Machine-readable output.")
     g.add_argument("--precession", default="j2000", metavar="FRAME",
                    help="Precession of theta: j2000 (default), equinox or none.")
@@ -451,7 +451,14 @@ def run(a) -> None:
     wants_verdict = any(v for v in (site, lat, lon, scope, aperture))
     epoch_yr = resolve_epoch(date, epoch)
     epochs = parse_years(years) if years else None
+    if plot is not None:
+        if plot.suffix.lower() not in (".png", ".svg"):
+            raise InputError(f"--plot {plot}: the file name must end in .png or .svg")
+        (plot,) = opt.check_outputs(a.force, plot=plot)
     cat, label = find(catalog, query)
+    from planner.cli.night_cmd import skipped_lines_note
+
+    skipped_lines_note(len(cat.problems), catalog)
     rep = geometry_report(cat, label, epoch_yr, precession)
     tonight = None
     if wants_verdict:
@@ -465,7 +472,7 @@ def run(a) -> None:
         raise InputError("a verdict needs a site (--site or --lat/--lon/--tz) and a telescope (--aperture or --scope)")
     table = year_table(cat, label, epochs, precession) if epochs is not None else None
     if plot is not None:
-        written = plot_pair(cat, label, epoch_yr, plot, precession)
+        written = plot_pair(cat, label, epoch_yr, plot, precession, force=a.force)
         print(f"splitplan: wrote {written}", file=sys.stderr)
     if as_json:
         if table is not None:

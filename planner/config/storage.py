@@ -82,7 +82,11 @@ def _kind_of(mode: int) -> str:
     return "not a regular file"
 
 
-def check_regular(path, what: str = "file") -> os.stat_result:
+_EXPECTED = {"toml": "a .toml file", "catalogue": "a catalogue text file", "horizon": "a horizon text file",
+             "target list": "a CSV text file", "json": "a .json file"}
+
+
+def check_regular(path, what: str = "file", expect: str = "a file") -> os.stat_result:
     """``os.stat`` of ``path`` after checking it names an existing regular file
     (a symbolic link to one is fine); a one-line InputError otherwise."""
     p = Path(path)
@@ -95,7 +99,7 @@ def check_regular(path, what: str = "file") -> os.stat_result:
     except OSError as exc:
         raise PlannerError(f"cannot read {what} {str(p)!r}: {exc.strerror or exc}") from None
     if stat.S_ISDIR(st.st_mode):
-        raise InputError(f"{what} {str(p)!r} is a directory; give the path of a file")
+        raise InputError(f"{what} {str(p)!r} is a directory; give the path of {expect}")
     if not stat.S_ISREG(st.st_mode):
         raise InputError(f"{what} {str(p)!r} is {_kind_of(st.st_mode)}; give the path of a regular file")
     return st
@@ -111,7 +115,7 @@ def read_user_file(path, what: str = "file", kind: str = "toml") -> bytes:
     plus one byte is read (a file that grows meanwhile is refused too)."""
     p = user_path(path)
     limit = MAX_BYTES[kind]
-    st = check_regular(p, what)
+    st = check_regular(p, what, _EXPECTED.get(kind, "a file"))
     if st.st_size > limit:
         raise InputError(f"{what} {str(p)!r} is {_size_text(st.st_size)}; the limit for a {kind} "
                          f"file is {_size_text(limit)}")

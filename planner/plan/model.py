@@ -161,6 +161,7 @@ class NightPlan:
     matrix: object = None            # club matrix DataFrame (pairs x scopes) or None
     cautions: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    catalog_skipped: int = 0         # catalogue lines that could not be read
     session: object = None           # the resolved planner.plan.session.Session (site, telescopes, night)
 
     @property

@@ -397,6 +397,10 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                      seeing_arcsec=seeing, seeing_origin=session.seeing_origin, scopes=[],
                      cautions=list(CAUTIONS), session=session)
     plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
+    plan.catalog_skipped = len(getattr(cat, "problems", None) or [])
+    if plan.catalog_skipped:
+        plan.notes.append(f"{plan.catalog_skipped} catalogue line(s) could not be read and were skipped "
+                          f"('splitplan catalog show --catalog {request.catalog}' lists them)")
     plan.notes += [f"{name}: limits and chances use your calibration ({cal.sentence()})"
                    for name, cal in session.calibrations]
     up = nt.up
