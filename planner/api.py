@@ -16,6 +16,8 @@ is cheap.  Example::
 
 from __future__ import annotations
 
+from planner import __version__
+
 
 def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
                catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
