@@ -64,6 +64,26 @@ def jd_from_besselian_year(year):
     return JD_B1900 + (np.asarray(year, dtype=float) - 1900.0) * TROPICAL_YEAR_D
 
 
+def calendar_date_from_jd(jd) -> str:
+    """The calendar date (proleptic Gregorian, ISO 8601 text) of the day that holds the
+    Julian date ``jd``; a day runs from JD ``n - 0.5`` to ``n + 0.5``.
+
+    Integer algorithm of Richards (2013), *Explanatory Supplement to the Astronomical
+    Almanac*, 3rd ed., section 15.11.3 (Gregorian constants), valid for JD >= 0 (from
+    4713 BC); years outside 0-9999 are written with a sign (ISO 8601 expanded years,
+    ``-1234-05-06``), which :mod:`datetime` cannot hold.
+    """
+    j = int(np.floor(float(jd) + 0.5))
+    f = j + 1401 + (((4 * j + 274277) // 146097) * 3) // 4 - 38
+    e = 4 * f + 3
+    g = (e % 1461) // 4
+    h = 5 * g + 2
+    day = (h % 153) // 5 + 1
+    month = (h // 153 + 2) % 12 + 1
+    year = e // 1461 - 4716 + (12 + 2 - month) // 12
+    return f"{year:04d}-{month:02d}-{day:02d}" if 0 <= year <= 9999 else f"{year:+05d}-{month:02d}-{day:02d}"
+
+
 def julian_year_from_jd(jd):
     """Julian year (J2000.0 = JD 2451545.0, 365.25-day years; IAU 1976)."""
     return 2000.0 + (np.asarray(jd, dtype=float) - JD_J2000) / JULIAN_YEAR_D
@@ -86,33 +106,6 @@ def jd_from_datetime64(t):
         ticks, per_day = t.astype("datetime64[us]").astype("int64"), 86400e6
     out = _JD_UNIX_EPOCH + ticks.astype(float) / per_day
     return np.where(np.isnat(t), np.nan, out)
-
-
-def calendar_date_from_jd(jd: float) -> str:
-    """The proleptic Gregorian calendar date (UTC) of a Julian date, as
-    ``YYYY-MM-DD`` with astronomical year numbering (year 0 = 1 BC, written
-    ``-0001`` for 2 BC), for any JD >= 0 (4713 BC).
-
-    Integer algorithm of Fliegel & Van Flandern (1968, Communications of the
-    ACM 11, 657), which unlike :mod:`datetime` covers years before 1 AD."""
-    j = int(np.floor(float(jd) + 0.5))
-    if j < 0:
-        from planner.errors import InputError
-
-        raise InputError(f"Julian date {jd} is before JD 0 (4713 BC); no calendar date is given")
-    # floor division throughout; valid for j >= 0
-    a = j + 68569
-    b = (4 * a) // 146097
-    a = a - (146097 * b + 3) // 4
-    c = (4000 * (a + 1)) // 1461001
-    a = a - (1461 * c) // 4 + 31
-    d = (80 * a) // 2447
-    day = a - (2447 * d) // 80
-    a = d // 11
-    month = d + 2 - 12 * a
-    year = 100 * (b - 49) + c + a
-    ytxt = f"{year:04d}" if year >= 0 else f"-{-year:04d}"
-    return f"{ytxt}-{month:02d}-{day:02d}"
 
 
 def to_epoch_yr(epoch):
