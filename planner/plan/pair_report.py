@@ -89,10 +89,10 @@ def parse_years(spec: str) -> np.ndarray:
     step = nums[2] if len(nums) == 3 else 1.0
     if step <= 0 or stop < start:
         raise InputError(f"--years {spec!r}: need FROM <= TO and a positive STEP")
-    check_epoch_yr([start, stop], f"--years {spec}: the year")
     n = int(np.floor((stop - start) / step + 1e-9)) + 1
     if n > MAX_TABLE_ROWS:
         raise InputError(f"--years {spec!r} gives {n} rows; at most {MAX_TABLE_ROWS} (use a larger STEP)")
+    check_epoch_yr([start, stop], f"--years {spec}: the year")
     return start + step * np.arange(n)
 
 
