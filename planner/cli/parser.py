@@ -131,7 +131,8 @@ class Group:
 
     def format_help(self, path: str) -> str:
         width = help_width()
-        out = [f"usage: {path} [-h] COMMAND ...", ""]
+        flags = "".join(f" [{fl[0]}]" for fl, _, _ in self.flags)
+        out = [f"usage: {path} [-h]{flags} COMMAND ...", ""]
         out += textwrap.wrap(self.help, width) + [""]
         out.append("Commands:")
         pad = max(16, max(len(c.name) for c in self.children) + 4)
