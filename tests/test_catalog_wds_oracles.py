@@ -209,3 +209,24 @@ def test_wds_separator_columns_are_not_part_of_any_number(col):
     row = got.iloc[0]
     for key in [*WDS_NUMERIC, "mag1", "mag2"]:
         assert same(row[key], base[key]), (col, key)
+
+
+def test_wds_text_after_column_130_is_ignored():
+    # the WDS summary line is 130 columns (wdsweb_format.txt); the genuine rows carry a
+    # constellation after it.  Whatever follows column 130 -- even a byte that is not ASCII
+    # -- does not stop the line from being read, nor change it.
+    line = _wds_rows()[0][:130].encode()
+    df = parse_wds_lines([line + b" Cep", line + b"\xe9\x01 junk", line])
+    assert list(df["line_no"]) == [1.0, 2.0, 3.0], df.attrs["problems"]
+    for key in WDS_NUMERIC:
+        assert len({*df[key].astype(str)}) == 1, key
+
+
+def test_wds_line_holding_only_id_and_discoverer():
+    # id (1-10) and discoverer (11-17) are the minimum the reader documents: a 17-column line
+    # is read (every other field missing), a 16-column one is refused with its reason
+    full = _wds_rows()[0]
+    df = parse_wds_lines([full[:17].encode(), full[:16].encode()])
+    assert list(df["line_no"]) == [1.0]
+    assert df.iloc[0]["wds_id"] == full[:10] and np.isnan(df.iloc[0]["sep_last_arcsec"])
+    assert df.attrs["problems"] == [(2, "line too short to hold the WDS id and discoverer (17 columns)")]
