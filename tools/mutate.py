@@ -291,7 +291,9 @@ def _fork_run(modname, path, source, tests, timeout, verbose=False) -> tuple[str
 
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("module", help="e.g. planner/catalogs/wds.py")
+    ap.add_argument("module", nargs="?", help="e.g. planner/catalogs/wds.py")
+    ap.add_argument("--summary", action="store_true",
+                    help="print a Markdown table of the results in mutation/*.json and stop")
     ap.add_argument("--tests", nargs="+", help="test files (default: the TESTS table)")
     ap.add_argument("--only", nargs="+", type=int, help="mutant ids to run")
     ap.add_argument("--list", action="store_true", help="list the mutants and stop")
@@ -301,6 +303,10 @@ def main(argv=None) -> int:
     args = ap.parse_args(argv)
 
     os.chdir(ROOT)
+    if args.summary:
+        return _summary()
+    if not args.module:
+        ap.error("give a module (or --summary)")
     rel = args.module
     path = ROOT / rel
     modname = rel[:-3].replace("/", ".")
@@ -371,6 +377,20 @@ def main(argv=None) -> int:
     for r in counted:
         if r["status"] == "survived":
             print(f"  SURVIVED {r['id']:4d} L{r['line']:<4d} {r['what']:<22s} {r['code']}")
+    return 0
+
+
+def _summary() -> int:
+    print("| module | commit | mutants run (of sites) | killed | kill rate | survivors |")
+    print("|---|---|---|---|---|---|")
+    for f in sorted((ROOT / "mutation").glob("*.json")):
+        r = json.loads(f.read_text())
+        surv = [m for m in r["mutants"] if m["status"] == "survived"]
+        sample = f", 1 in {r['every']}" if r.get("every", 1) > 1 else ""
+        rate = f"{100 * r['kill_rate']:.1f} %" if r["kill_rate"] is not None else "-"
+        ids = ", ".join(f"{m['id']} (L{m['line']}: {m['what']})" for m in surv) or "none"
+        print(f"| `{r['module']}` | {r['commit']} | {r['total']} (of {r.get('sites', '?')}{sample})"
+              f" | {r['killed']} | {rate} | {ids} |")
     return 0
 
 
