@@ -230,3 +230,11 @@ def test_wds_line_holding_only_id_and_discoverer():
     assert list(df["line_no"]) == [1.0]
     assert df.iloc[0]["wds_id"] == full[:10] and np.isnan(df.iloc[0]["sep_last_arcsec"])
     assert df.attrs["problems"] == [(2, "line too short to hold the WDS id and discoverer (17 columns)")]
+
+
+def test_wds_blank_lines_of_any_length_up_to_130_are_skipped_silently():
+    # documented in planner/catalogs/wds.py: blank lines are skipped (not reported); a full
+    # 130-column blank line is still a blank line
+    line = _wds_rows()[0][:130].encode()
+    df = parse_wds_lines([line, b"", b" " * 17, b" " * 130, line])
+    assert list(df["line_no"]) == [1.0, 5.0] and df.attrs["problems"] == []
