@@ -60,3 +60,21 @@ def test_refraction_below_minus_one_degree_is_the_value_at_minus_one(fn):
             atm.refraction_saemundsson1986: 1.02 / np.tan(np.radians(-1 + 10.3 / 4.11))}[fn]
     for h in (-1.0, -2.0, -3.0):
         assert float(fn(h)) == pytest.approx(want, rel=1e-12), h
+
+
+def test_dispersion_defaults_are_sea_level():
+    # documented defaults: 450-650 nm, 1013.25 hPa (760 mmHg), 10 C -- the sea-level table of
+    # methods-reference 8 [D, Filippenko 1982]: 0.88" at 45 deg, 1.53" at 30 deg altitude
+    assert float(atm.dispersion_arcsec(45.0)) == pytest.approx(0.88, abs=0.01)
+    assert float(atm.dispersion_arcsec(30.0)) == pytest.approx(1.53, abs=0.015)
+
+
+def test_moonlight_default_extinction_and_the_horizon():
+    # default k = 0.2 mag/airmass (Schaefer 1985 via Green 1992, methods-reference 4) ...
+    args = (40.0, 30.0, 50.0, 60.0)
+    assert atm.moon_sky_nl(*args) == pytest.approx(atm.moon_sky_nl(*args, k=0.2), rel=1e-12)
+    assert atm.moon_sky_nl(*args) != pytest.approx(atm.moon_sky_nl(*args, k=0.15), rel=1e-3)
+    # ... and moonlight counts only with the Moon above the horizon (Krisciunas & Schaefer
+    # 1991 scatter light from a Moon that is up): nothing at altitude 0, something just above
+    assert atm.moon_sky_nl(40.0, 0.0, 50.0, 60.0) == 0.0
+    assert atm.moon_sky_nl(40.0, 0.5, 50.0, 60.0) > 0.0
