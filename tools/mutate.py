@@ -48,7 +48,8 @@ ROOT = Path(__file__).resolve().parents[1]
 TESTS = {
     "planner/catalogs/wds.py": ["tests/test_catalog_wds_oracles.py", "tests/test_catalog_wds.py"],
     "planner/catalogs/orb6.py": ["tests/test_catalog_orb6_oracles.py", "tests/test_catalog_orb6.py"],
-    "planner/optics/limits.py": ["tests/test_optics_limits.py", "tests/test_outside_values.py"],
+    "planner/optics/limits.py": ["tests/test_optics_limits.py", "tests/test_optics_limits_edges.py",
+                                 "tests/test_outside_values.py"],
     "planner/optics/rules.py": ["tests/test_optics_rules.py", "tests/test_outside_values.py"],
     "planner/optics/seeing.py": ["tests/test_optics_seeing.py"],
     "planner/optics/separability.py": ["tests/test_optics_separability.py",
