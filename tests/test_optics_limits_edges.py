@@ -35,3 +35,35 @@ def test_documented_ranges_include_their_ends():
         dawes_limit_arcsec(0.5)
     with pytest.raises(InputError, match="wavelength_nm = 5001.0 is not allowed"):
         rayleigh_limit_arcsec(100, 5001.0)
+
+
+@pytest.mark.parametrize("x", [0.3, 0.5, 1.0, 1.6347, 2.0])
+def test_encircled_energy_between_the_rings(x):
+    # Rayleigh 1881: EE = 1 - J0(v)^2 - J1(v)^2, checked off the dark rings (where J1 = 0
+    # hides the J1 term) against a numerical integral of the Airy pattern (2 J1(v)/v)^2,
+    # whose total flux is 4 pi in v units (methods-reference 1)
+    from scipy.integrate import quad
+    from scipy.special import j1
+
+    from planner.optics.limits import encircled_energy
+
+    flux, _ = quad(lambda v: (2 * j1(v) / v) ** 2 * 2 * np.pi * v if v > 0 else 0.0,
+                   0.0, np.pi * x, epsabs=1e-12, limit=200)
+    assert float(encircled_energy(x)) == pytest.approx(flux / (4 * np.pi), abs=1e-9)
+
+
+@pytest.mark.parametrize("dm", [0.0, 1.0, 2.5, 5.0])
+def test_pair_profile_is_two_airy_patterns(dm):
+    # I(x) = A(|x|) + 10^(-0.4 dm) A(|x - s|), A = (2 J1(pi x)/(pi x))^2 (Airy 1835)
+    from scipy.special import j1
+
+    from planner.optics.limits import pair_profile
+
+    def airy(r):
+        v = np.pi * np.abs(r)
+        return (2 * j1(v) / v) ** 2
+
+    x = np.array([-0.37, 0.41, 0.9, 1.73, 2.2])
+    s = 1.3
+    want = airy(x) + 10 ** (-0.4 * dm) * airy(x - s)
+    np.testing.assert_allclose(pair_profile(x, s, dm), want, rtol=1e-9)
