@@ -388,7 +388,10 @@ def _summary() -> int:
     for f in sorted((ROOT / "mutation").glob("*.json")):
         r = json.loads(f.read_text())
         surv = [m for m in r["mutants"] if m["status"] == "survived"]
-        sample = f", 1 in {r['every']}" if r.get("every", 1) > 1 else ""
+        every = r.get("every", 1)
+        if every == 1 and r["total"] < r.get("sites", r["total"]):
+            every = round(r["sites"] / r["total"])
+        sample = f", 1 in {every}" if every > 1 else ""
         rate = f"{100 * r['kill_rate']:.1f} %" if r["kill_rate"] is not None else "-"
         ids = ", ".join(f"{m['id']} (L{m['line']}: {m['what']})" for m in surv) or "none"
         print(f"| `{r['module']}` | {r['commit']} | {r['total']} (of {r.get('sites', '?')}{sample})"
