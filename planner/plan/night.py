@@ -65,9 +65,14 @@ def resolve_seeing(request: NightRequest) -> tuple[float, str]:
     return 2.0, "2\" FWHM (default; give --seeing or --steadiness)"
 
 
+def now_utc() -> np.datetime64:
+    """The current instant, UTC (one place, so tests can fix the clock)."""
+    return np.datetime64(_dt.datetime.now(_dt.timezone.utc).replace(tzinfo=None), "ns")
+
+
 def tonight(site) -> str:
     """Local date of tonight's evening at the site (before noon: last night)."""
-    now = _dt.datetime.now(site.zone)
+    now = pd.Timestamp(now_utc()).tz_localize("UTC").to_pydatetime().astimezone(site.zone)
     if now.hour < 12:
         now = now - _dt.timedelta(days=1)
     return now.date().isoformat()
@@ -116,31 +121,62 @@ def _has_window(ninfo: dict) -> bool:
     return a is not None and b is not None and not pd.isna(a) and not pd.isna(b)
 
 
-def session_window(ninfo: dict, site, local_date: str, start_local, end_local):
-    """The dark window, cut to the observer's optional HH:MM start and end."""
-    a = np.datetime64(pd.Timestamp(ninfo["dark_start_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_start_utc"]).tzinfo else ninfo["dark_start_utc"], "ns")
-    b = np.datetime64(pd.Timestamp(ninfo["dark_end_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_end_utc"]).tzinfo else ninfo["dark_end_utc"], "ns")
+def _utc64(value) -> np.datetime64:
+    """A UTC instant (naive numpy, pandas or aware datetime) as numpy datetime64[ns]."""
+    ts = pd.Timestamp(value)
+    if ts.tzinfo is not None:
+        ts = ts.tz_convert("UTC").tz_localize(None)
+    return np.datetime64(ts.to_datetime64(), "ns")
 
-    def at(hhmm: str, default):
-        try:
-            h, m = (int(x) for x in str(hhmm).split(":"))
-            assert 0 <= h < 24 and 0 <= m < 60
-        except Exception:
-            raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock)") from None
-        day = _dt.date.fromisoformat(local_date)
-        if h < 12:  # after midnight: the next calendar day
-            day = day + _dt.timedelta(days=1)
-        local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
-        return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
 
-    if start_local:
-        a = max(a, at(start_local, a))
-    if end_local:
-        b = min(b, at(end_local, b))
-    if start_local and end_local and at(start_local, a) >= at(end_local, b):
+def local_clock_utc(hhmm: str, site, local_date: str, now=None) -> np.datetime64:
+    """The UTC instant of an HH:MM local clock time on the night of ``local_date``.
+
+    Times before noon are the next calendar morning.  ``"now"`` is the current
+    instant (``now`` when given, else :func:`now_utc`)."""
+    if str(hhmm).strip().lower() == "now":
+        return _utc64(now if now is not None else now_utc())
+    try:
+        h, m = (int(x) for x in str(hhmm).split(":"))
+        assert 0 <= h < 24 and 0 <= m < 60
+    except Exception:
+        raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock) or 'now'") from None
+    day = _dt.date.fromisoformat(local_date)
+    if h < 12:  # after midnight: the next calendar day
+        day = day + _dt.timedelta(days=1)
+    local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
+    return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
+
+
+def session_window(ninfo: dict, site, local_date: str, start_local, end_local, now=None):
+    """The dark window, cut to the observer's optional HH:MM (or ``now``) start and end."""
+    a = _utc64(ninfo["dark_start_utc"])
+    b = _utc64(ninfo["dark_end_utc"])
+    t_start = local_clock_utc(start_local, site, local_date, now) if start_local else None
+    t_end = local_clock_utc(end_local, site, local_date, now) if end_local else None
+    if t_start is not None and t_end is not None and t_start >= t_end:
         raise InputError(f"--start {start_local} is not before --end {end_local} (evening times before "
                          "midnight, morning times after)")
+    if t_start is not None:
+        a = max(a, t_start)
+    if t_end is not None:
+        b = min(b, t_end)
+    if a >= b:
+        dark = f"{site.format_local(ninfo['dark_start_utc'], '%H:%M')}-{site.format_local(ninfo['dark_end_utc'], '%H:%M')}"
+        raise InputError(f"the chosen times (start {start_local or 'dark'}, end {end_local or 'dawn'}) leave no "
+                         f"time inside the night's dark window ({dark} local on {local_date})")
     return a, b
+
+
+def window_night(night, window):
+    """The sky engine's night with its dark window cut to the observing ``window``
+    (so visibility, best time and altitude are those inside the window)."""
+    import dataclasses
+
+    a, b = window
+    if a == _utc64(night.dark_start_utc) and b == _utc64(night.dark_end_utc):
+        return night
+    return dataclasses.replace(night, dark_start_utc=np.datetime64(a, "ns"), dark_end_utc=np.datetime64(b, "ns"))
 
 
 # -- filters ------------------------------------------------------------------------
@@ -271,6 +307,10 @@ def _schedule_section(tel, scope_name, cand, site, seeing, window, minutes, limi
 
     if len(cand) == 0 or limit <= 0:
         return empty_schedule()
+    # The schedule is built for the whole observing window and only then cut to ``limit``: the
+    # pairs shown with --limit 5 are the first five of the full window's schedule, never a
+    # different (and worse-placed) choice.
+    fill = _window_slots(window, minutes)
     pool = cand.sort_values("score", ascending=False, kind="stable").head(POOL_SIZE)
     altaz_fn = bridge.FastAltAz(pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), site,
                                 window[0] + (window[1] - window[0]) // 2)
@@ -279,11 +319,18 @@ def _schedule_section(tel, scope_name, cand, site, seeing, window, minutes, limi
         pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), pool["score"].to_numpy(float),
         _as_ns(pool["best_utc"]), _as_ns(pool["set_utc"]) if "set_utc" in pool else None,
         window[0], window[1], minutes=minutes, altaz_fn=altaz_fn, min_alt_deg=site.min_alt_deg,
-        limit=limit, busy=busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
+        limit=fill, busy=busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
+    sched = sched.head(int(limit))
     if len(sched) == 0:
         return empty_schedule()
     rows = pool.iloc[sched["cand"].to_numpy()].reset_index(drop=True)
     return _finish_rows(tel, scope_name, rows, sched, site, seeing, section)
+
+
+def _window_slots(window, minutes: float) -> int:
+    """How many slots of ``minutes`` the observing window holds (at least one)."""
+    span_min = (np.datetime64(window[1], "ns") - np.datetime64(window[0], "ns")).astype("int64") / 60e9
+    return max(1, int(span_min // float(minutes)))
 
 
 def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
@@ -292,8 +339,7 @@ def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
     then fill the gaps the main list leaves)."""
     if request.limit is not None:
         return max(1, int(request.limit) // 2) if challenge else int(request.limit)
-    span_min = (np.datetime64(window[1], "ns") - np.datetime64(window[0], "ns")).astype("int64") / 60e9
-    return max(1, int(span_min // float(request.minutes)))
+    return _window_slots(window, request.minutes)
 
 
 def _geometric_best_alt(pool: pd.DataFrame) -> np.ndarray:
@@ -391,6 +437,12 @@ def prepare(request: NightRequest, catalog=None):
     night = bridge.make_night(site, local_date, request.darkness)
     ninfo = night_summary(night, site)
     ninfo["local_date"] = local_date
+    # the observing window (dark window cut to --start/--end): candidates are chosen for it
+    vis_night = night
+    if _has_window(ninfo):
+        window = session_window(ninfo, site, local_date, request.start_local, request.end_local)
+        ninfo["window_start_utc"], ninfo["window_end_utc"] = window
+        vis_night = window_night(night, window)
     cat = catalog if catalog is not None else bridge.load_catalog(request.catalog)
     pairs = cat.pairs
     if _has_window(ninfo):
@@ -409,7 +461,7 @@ def prepare(request: NightRequest, catalog=None):
     # every listed pair stays, so the plan can say which of them are not placed tonight.
     pos_ok = np.isfinite(pairs["ra_deg"].to_numpy(float)) & np.isfinite(pairs["dec_deg"].to_numpy(float))
     placed = pairs[pos_ok]
-    vis = bridge.visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, night)
+    vis = bridge.visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, vis_night)
     vis = vis.reset_index(drop=True)
     vis.index = placed.index
     up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
@@ -458,7 +510,7 @@ def plan_night(request: NightRequest, catalog=None) -> NightPlan:
             plan.scopes.append(ScopePlan(name=name, telescope=dict(sd), candidates=j,
                                          schedule=empty_schedule()))
         return plan
-    window = session_window(ninfo, site, request.date, request.start_local, request.end_local)
+    window = (ninfo["window_start_utc"], ninfo["window_end_utc"])
     assign = None
     if len(judged) > 1:
         plan.matrix, assign = club.share(judged, share_margin=request.share_margin)
