@@ -84,3 +84,72 @@ def test_start_after_the_dark_window_is_one_clear_error(monkeypatch):
     monkeypatch.setattr(nightmod, "now_utc", lambda: np.datetime64("2026-12-03T08:00:00", "ns"))
     with pytest.raises(InputError, match="no time inside the night's dark window"):
         _madrid(date=None, start_local="now")
+
+
+# -- item 2: not up is not "will not split" ---------------------------------------------------
+
+OSLO = {"lat_deg": 59.9, "lon_deg": 10.7, "elevation_m": 0.0, "tz": "Europe/Oslo"}
+
+
+def test_no_dark_window_is_said_and_the_optics_judged_apart():
+    from planner.plan.single import check_pair
+
+    # Oslo at midsummer: the Sun stays above -12 deg all night (lowest about -6.7 deg =
+    # 59.9 + 23.44 - 90, the Sun's lower culmination; declination from the Astronomical Almanac)
+    r = check_pair("sample", "STF2272", OSLO, "2026-06-21", {"aperture_mm": 127.0}, 2.0)
+    assert r["sky_state"] == "no-dark" and "no dark window" in r["sky_text"]
+    # 70 Oph at ~6.7" is far above a 127 mm limit (Dawes 116/127 = 0.91", Dawes 1867): the
+    # optical verdict, at its highest altitude (90 - |59.9 - 2.5| = 32.6 deg), is a split
+    assert r["verdict"] == "split" and r["chance"] > 0.9
+    assert "optics alone" in r["verdict_basis"]
+    assert r["verdict_alt_deg"] == pytest.approx(90.0 - abs(59.9 - r["dec_deg"]), abs=1e-6)
+    assert "not up" not in r["reason"]
+
+
+def test_not_up_in_the_dark_is_said_and_the_optics_judged_apart():
+    from planner.plan.single import check_pair
+
+    # 70 Oph (RA 18 h) on a December evening at 52 N sets in twilight
+    site = {"lat_deg": 52.19, "lon_deg": -2.41, "tz": "Europe/London"}
+    r = check_pair("sample", "STF2272AB", site, "2026-12-05", {"aperture_mm": 102.0}, 1.5)
+    assert r["sky_state"] == "not-up" and not r["observable"]
+    assert r["verdict"] == "split" and "optics alone" in r["verdict_basis"]
+
+
+def _astropy_dark_up_minutes(ra, dec, lat, lon, date, sun_limit=-12.0, min_alt=20.0):
+    """Minutes (10-min samples, local mean noon to noon) with the Sun below ``sun_limit`` and the
+    target above ``min_alt``, from astropy (get_sun, AltAz without refraction)."""
+    import datetime as dt
+
+    from astropy import units as u
+    from astropy.coordinates import AltAz, EarthLocation, SkyCoord, get_sun
+    from astropy.time import Time
+
+    d = dt.date.fromisoformat(date)
+    t0 = Time(f"{d.isoformat()}T12:00:00", scale="utc") - (lon / 15.0) * u.hour
+    t = t0 + np.arange(0, 24 * 60, 10) * u.min
+    loc = EarthLocation(lat=lat * u.deg, lon=lon * u.deg)
+    frame = AltAz(obstime=t, location=loc)
+    sun = get_sun(t).transform_to(frame).alt.deg
+    star = SkyCoord(ra * u.deg, dec * u.deg).transform_to(frame).alt.deg
+    return 10.0 * float(((sun < sun_limit) & (star >= min_alt)).sum())
+
+
+def test_good_season_respects_darkness():
+    import datetime as dt
+
+    from planner.plan.single import best_dates
+
+    ra, dec = 271.36, 2.50  # 70 Oph, J2000 (WDS 18055+0230)
+    r = best_dates(ra, dec, 59.9, "2026-06-21", lon_deg=10.7, sun_limit_deg=-12.0, min_alt_deg=20.0,
+                   minutes=10.0)
+    assert r["midnight_transit"][5:7] == "06"
+    a, b = (dt.date.fromisoformat(r[k]) for k in ("good_from", "good_to"))
+    # the midsummer transit is in the light: the season may not contain it (before: 9 May-5 Aug)
+    assert not a <= dt.date.fromisoformat(r["midnight_transit"]) <= b
+    assert r["note"]
+    for day in (a, a + (b - a) / 2, b):
+        assert _astropy_dark_up_minutes(ra, dec, 59.9, 10.7, day.isoformat()) >= 10.0, day
+    # the day before the season starts is not dark enough with the pair up (astropy), within a day
+    before = (a - dt.timedelta(days=2)).isoformat()
+    assert _astropy_dark_up_minutes(ra, dec, 59.9, 10.7, before) < 10.0
