@@ -65,7 +65,7 @@ def test_limit_only_truncates_the_window_schedule(window_plan, limit):
 
 
 def test_start_now_uses_the_current_instant(monkeypatch):
-    from planner.plan import night as nightmod
+    from planner.plan import session as nightmod
 
     # 00:10 local time in Madrid (CET = UTC+1) on 3 December: the night of 2 December
     monkeypatch.setattr(nightmod, "now_utc", lambda: np.datetime64("2026-12-02T23:10:00", "ns"))
@@ -78,7 +78,7 @@ def test_start_now_uses_the_current_instant(monkeypatch):
 
 def test_start_after_the_dark_window_is_one_clear_error(monkeypatch):
     from planner.errors import InputError
-    from planner.plan import night as nightmod
+    from planner.plan import session as nightmod
 
     # 09:00 local on 3 December: tonight is still the night of the 2nd, whose dark window is over
     monkeypatch.setattr(nightmod, "now_utc", lambda: np.datetime64("2026-12-03T08:00:00", "ns"))
