@@ -153,3 +153,75 @@ def test_good_season_respects_darkness():
     # the day before the season starts is not dark enough with the pair up (astropy), within a day
     before = (a - dt.timedelta(days=2)).isoformat()
     assert _astropy_dark_up_minutes(ra, dec, 59.9, 10.7, before) < 10.0
+
+
+# -- item 3: one pair, one verdict -------------------------------------------------------------
+
+@pytest.fixture(scope="module")
+def madrid_challenges():
+    return _madrid(challenges=True)
+
+
+def test_each_row_sits_in_the_section_of_its_own_verdict(madrid_challenges):
+    s = madrid_challenges.schedule
+    chal = s[s["section"] == "challenge"]
+    assert len(chal) > 0
+    # before: near-miss rows said "should split cleanly" at 84-98 % (judged at the slot without the
+    # sky brightness and dispersion that made them near misses at their best time)
+    assert (chal["verdict"] != "split").all()
+    assert not chal["reason"].str.contains("should split cleanly").any()
+    main = s[s["section"] == "plan"]
+    assert (main["verdict"] == "split").all()
+    for sec in (main, chal):
+        assert list(sec["slot"]) == list(range(1, len(sec) + 1))
+        assert sec["slot_start_utc"].is_monotonic_increasing
+
+
+def test_slot_verdict_reads_the_same_sky_as_the_best_time_verdict(madrid_challenges):
+    # Re-judge every scheduled row at its slot with the sky engine's conditions at that instant
+    # (dispersion, sky brightness): the verdict shown is exactly that one.
+    from planner.plan.night import judge_rows
+    from planner.sky.atmosphere import airmass
+    from planner.sky.placement import conditions_at
+
+    p = madrid_challenges
+    s = p.schedule
+    site, night = p.session.site, p.session.night
+    cond = conditions_at(s["ra_deg"].to_numpy(float), s["dec_deg"].to_numpy(float), site, night,
+                         s["slot_start_utc"].to_numpy("datetime64[ns]"))
+    v = judge_rows(p.session.telescopes[0], s, p.seeing_arcsec, airmass(cond["alt_deg"]),
+                   sky_mag=cond["sky_mag_arcsec2"], dispersion_arcsec=cond["dispersion_arcsec"])
+    assert list(v["verdict"].astype(str)) == list(s["verdict"])
+    np.testing.assert_allclose(v["limit_arcsec"].to_numpy(float), s["limit_arcsec"].to_numpy(float), rtol=1e-12)
+
+
+# -- item 8: the header's counts ------------------------------------------------------------------
+
+def test_header_counts_scheduled_and_why_not(madrid_challenges):
+    import re
+
+    sp = madrid_challenges.scopes[0]
+    j, s = sp.candidates, sp.schedule
+    splits = (j["verdict"] == "split") & j["up"]
+    st = j["plan_status"]
+    # every pair that splits is either in the schedule or has a reason
+    assert (st[splits] != "").all()
+    assert int((st == "scheduled").sum()) == int((s["section"] == "plan").sum())
+    # the header says it: "N pairs split tonight, M near misses; K scheduled ...; not scheduled: ..."
+    m = re.search(r"(\d+) pairs split tonight, (\d+) near misses; (\d+) scheduled", sp.summary)
+    assert m, sp.summary
+    assert int(m.group(1)) == int(splits.sum()) and int(m.group(3)) == int((s["section"] == "plan").sum())
+    not_sched = int(splits.sum()) - int((st[splits] == "scheduled").sum()) - int((st[splits] == "scheduled as a near miss").sum())
+    if not_sched:
+        counts = [int(x) for x in re.findall(r"(\d+) [a-z]", sp.summary.split("not scheduled:", 1)[1])]
+        assert sum(counts) == not_sched
+
+
+def test_header_names_the_limit():
+    p = _madrid(limit=5)
+    sp = p.scopes[0]
+    assert len(sp.schedule) == 5
+    n_split = int(((sp.candidates["verdict"] == "split") & sp.candidates["up"]).sum())
+    beyond = int((sp.candidates["plan_status"] == "beyond --limit 5").sum())
+    assert beyond > 0 and f"{beyond} beyond --limit 5" in sp.summary
+    assert n_split >= 5 + beyond
