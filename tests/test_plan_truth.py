@@ -225,3 +225,26 @@ def test_header_names_the_limit():
     beyond = int((sp.candidates["plan_status"] == "beyond --limit 5").sum())
     assert beyond > 0 and f"{beyond} beyond --limit 5" in sp.summary
     assert n_split >= 5 + beyond
+
+
+# -- item 10: magnification capped by the seeing --------------------------------------------------
+
+def test_highest_power_follows_the_seeing():
+    from planner.optics.telescope import Telescope
+    from planner.verdict import SEEING_APPARENT_MAX_ARCSEC, judge
+
+    tel = Telescope(aperture_mm=127.0)
+    out = {}
+    for see in (0.5, 1.0, 2.0, 3.0):
+        v = judge(np.array([3.0]), np.array([6.0]), np.array([6.5]), np.array([1.0]), tel, see)
+        out[see] = float(v["power_max"].iloc[0])
+    # 0.5" seeing: the usual 2x per mm of aperture (common practice, no source) = 254x
+    assert out[0.5] == pytest.approx(254.0)
+    # 2" at the zenith: the seeing disc at 550 nm is 2 x (550/500)^-0.2 = 1.962" (Fried 1966
+    # wavelength scaling, as planner.optics.seeing); 300" / 1.962" = 152.9x (before: 254x whatever
+    # the seeing)
+    assert out[2.0] == pytest.approx(SEEING_APPARENT_MAX_ARCSEC / (2.0 * 1.1 ** -0.2), rel=1e-6)
+    assert out[3.0] < out[2.0] < out[1.0] <= out[0.5]
+    # lower in the sky the seeing disc grows as X^0.6 (Roddier 1981), and the cap with it
+    v2 = judge(np.array([3.0]), np.array([6.0]), np.array([6.5]), np.array([2.0]), tel, 2.0)
+    assert float(v2["power_max"].iloc[0]) == pytest.approx(out[2.0] / 2.0 ** 0.6, rel=1e-6)
