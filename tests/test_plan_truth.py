@@ -248,3 +248,26 @@ def test_highest_power_follows_the_seeing():
     # lower in the sky the seeing disc grows as X^0.6 (Roddier 1981), and the cap with it
     v2 = judge(np.array([3.0]), np.array([6.0]), np.array([6.5]), np.array([2.0]), tel, 2.0)
     assert float(v2["power_max"].iloc[0]) == pytest.approx(out[2.0] / 2.0 ** 0.6, rel=1e-6)
+
+
+# -- item 11: wide pairs ---------------------------------------------------------------------------
+
+def _has_stt547_af(p):
+    c = p.scopes[0].candidates
+    return bool(((c["discoverer"] == "STT 547") & (c["components"] == "AF")).any())
+
+
+def test_wide_pairs_are_left_out_of_a_close_double_plan(window_plan):
+    p = _madrid()
+    # default ceiling: 40 x Dawes (115.8"/127 mm = 0.912", Dawes 1867) = 36.5" (project choice)
+    ceiling = 40.0 * 115.8 / 127.0
+    assert (p.scopes[0].candidates["rho_arcsec"] <= ceiling + 1e-9).all()
+    assert not _has_stt547_af(p)  # 327" (before: scheduled in the close-double list)
+    assert any("too easy for a close-double list" in n for n in p.notes)
+
+
+def test_the_ceiling_is_overridable():
+    assert _has_stt547_af(_madrid(wide_factor=0))
+    assert _has_stt547_af(_madrid(filters={"sep_max_arcsec": 400.0}))
+    few = _madrid(wide_factor=10)  # 9.1"
+    assert (few.scopes[0].candidates["rho_arcsec"] <= 10 * 115.8 / 127.0 + 1e-9).all()

@@ -422,6 +422,8 @@ class NightTable:
     catalog: object
     epoch: float
     minutes: float = 10.0
+    wide_ceiling_arcsec: float | None = None   # the close-double ceiling applied (None: none)
+    n_too_wide: int = 0                        # pairs left out by it
 
     @property
     def up(self) -> np.ndarray:
@@ -465,7 +467,42 @@ def prepare(session: Session, catalog=None) -> NightTable:
     table = pd.concat([placed[keep_cols], geo], axis=1)
     table = table[np.isfinite(table["rho_arcsec"].to_numpy(float))]
     table = apply_filters(table, request.filters, cat)
-    return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes)
+    ceiling = wide_ceiling_arcsec(session)
+    n_wide = 0
+    if ceiling is not None:
+        wide = table["rho_arcsec"].to_numpy(float) > ceiling
+        n_wide = int(wide.sum())
+        table = table[~wide]
+    return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes,
+                      wide_ceiling_arcsec=ceiling, n_too_wide=n_wide)
+
+
+#: default close-double ceiling: pairs wider than this many Dawes limits of the (smallest)
+#: aperture are left out of the plan (project choice, common practice, no source: at 40 x Dawes a
+#: pair is split at the lowest power and says nothing about the telescope; 45" for 102 mm, 23" for
+#: 203 mm).  ``NightRequest.wide_factor`` overrides it (0: no ceiling); ``--sep-max`` and a target
+#: list replace it.
+WIDE_FACTOR = 40.0
+
+
+def wide_ceiling_arcsec(session: Session) -> float | None:
+    """The separation above which a pair is too wide for a close-double plan, or None.
+
+    ``WIDE_FACTOR`` (or the request's ``wide_factor``) times the Dawes limit (Dawes 1867,
+    115.8"/D[mm]) of the smallest telescope in the session, so each telescope keeps every pair
+    interesting for it.  None when the observer set a separation ceiling (``sep_max_arcsec``),
+    gave a target list, or asked for none (``wide_factor = 0``)."""
+    from planner.optics.limits import dawes_limit_arcsec
+
+    r = session.request
+    f = r.filters or {}
+    factor = WIDE_FACTOR if getattr(r, "wide_factor", None) is None else float(r.wide_factor)
+    if factor < 0:
+        raise InputError(f"wide_factor {factor:g} must be 0 (no ceiling) or more")
+    if factor == 0 or f.get("sep_max_arcsec") is not None or f.get("targets") or not session.telescopes:
+        return None
+    d_min = min(float(t.aperture_mm) for t in session.telescopes)
+    return factor * float(dawes_limit_arcsec(d_min))
 
 
 @dataclass(frozen=True)
@@ -499,6 +536,10 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                      seeing_arcsec=seeing, seeing_origin=session.seeing_origin, scopes=[],
                      cautions=list(CAUTIONS), session=session)
     plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
+    if nt.n_too_wide:
+        plan.notes.append(f"{nt.n_too_wide} pairs wider than {nt.wide_ceiling_arcsec:.0f}\" left out as too easy for a "
+                          f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
+                          " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
     up = nt.up
     judged = []
     for tel, sd in zip(session.telescopes, request.scopes):
