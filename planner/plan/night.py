@@ -537,7 +537,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                      cautions=list(CAUTIONS), session=session)
     plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
     if nt.n_too_wide:
-        plan.notes.append(f"{nt.n_too_wide} pairs wider than {nt.wide_ceiling_arcsec:.0f}\" left out as too easy for a "
+        plan.notes.append(f"{nt.n_too_wide} pair{'' if nt.n_too_wide == 1 else 's'} wider than {nt.wide_ceiling_arcsec:.0f}\" left out as too easy for a "
                           f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
                           " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
     up = nt.up
