@@ -271,3 +271,37 @@ def test_the_ceiling_is_overridable():
     assert _has_stt547_af(_madrid(filters={"sep_max_arcsec": 400.0}))
     few = _madrid(wide_factor=10)  # 9.1"
     assert (few.scopes[0].candidates["rho_arcsec"] <= 10 * 115.8 / 127.0 + 1e-9).all()
+
+
+# -- item 15: WDS ids with an impossible declination ---------------------------------------------
+
+@pytest.mark.parametrize("wid, ok", [
+    ("12345+9004", False),   # 90 deg 04': beyond the pole (before: read as Dec +90.07)
+    ("12345-9001", False),
+    ("12345+9000", True),    # the pole itself
+    ("12345+8959", True),
+    ("23599-8959", True),
+    ("24000+1000", False),   # RA 24 h
+    ("12605+1000", False),   # 60 minutes of RA
+    ("12345+4560", False),   # 60 arcminutes
+])
+def test_wds_id_range(wid, ok):
+    from planner.catalogs import _fixed as fx
+
+    arr = fx.to_array([wid.encode()], 10)
+    assert bool(fx.wds_id_ok(arr)[0]) is ok
+
+
+def test_wds_row_with_dec_beyond_the_pole_is_a_problem_line():
+    from pathlib import Path
+
+    from planner.catalogs.wds import parse_wds_lines
+
+    # a genuine row of the bundled WDS sample (USNO WDS), its id changed to Dec 90 deg 04'
+    rows = [ln for ln in (Path(__file__).resolve().parents[1] / "catalogs_sample" / "wds_summary_rows.txt")
+            .read_bytes().splitlines() if ln[:1].isdigit()]
+    good = rows[0]
+    bad = b"12345+9004" + good[10:]
+    df = parse_wds_lines([good, bad])
+    assert list(df["line_no"].astype(int)) == [1]
+    assert (df["dec_deg"].abs() <= 90).all()
