@@ -271,6 +271,8 @@ def orb6_from_table(table) -> pd.DataFrame:
                       & (df["ecc"] < 1)).astype(bool)
     df["line_no"] = np.arange(1, n + 1, dtype=float)
     ok = df["wds_id"].str.fullmatch(r"\d{5}[+-]\d{4}").to_numpy(bool)
+    from planner.catalogs import _fixed as fx
+
     ok = ok & fx.wds_id_ok(fx.to_array([s.encode("ascii", "replace") for s in df["wds_id"].where(ok, "00000+0000")], 10))
     problems = [(int(i) + 1, "WDS id is not HHMMm+DDMM") for i in np.flatnonzero(~ok)]
     df = df[ok].reset_index(drop=True)
