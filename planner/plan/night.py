@@ -540,6 +540,8 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         plan.notes.append(f"{nt.n_too_wide} pair{'' if nt.n_too_wide == 1 else 's'} wider than {nt.wide_ceiling_arcsec:.0f}\" left out as too easy for a "
                           f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
                           " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
+    plan.notes += [f"{name}: limits and chances use your calibration ({cal.sentence()})"
+                   for name, cal in session.calibrations]
     up = nt.up
     judged = []
     for tel, sd in zip(session.telescopes, request.scopes):

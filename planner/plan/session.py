@@ -37,6 +37,7 @@ class Session:
     night_info: dict                 # plain values for reports (see :func:`night_summary`)
     seeing_arcsec: float
     seeing_origin: str
+    calibrations: tuple = ()         # (scope name, Calibration) when request.calibration == "mine"
     window_utc: tuple | None = None   # the observing window (dark window cut to --start/--end), UTC
 
     @property
@@ -76,9 +77,14 @@ class Session:
             # computed once, so '--start now' is one instant for the whole plan
             window = session_window(info, site, local_date, request.start_local, request.end_local)
             info["window_start_utc"], info["window_end_utc"] = window
+        calibrations = ()
+        if request.calibration is not None:
+            from planner.plan.observations import calibrate
+
+            telescopes, calibrations = calibrate(telescopes, request.calibration)
         return cls(request=dataclasses.replace(request, date=local_date), site=site, telescopes=telescopes,
                    night=night, night_info=info, seeing_arcsec=seeing, seeing_origin=seeing_origin,
-                   window_utc=window)
+                   calibrations=calibrations, window_utc=window)
 
     def window(self):
         """The observing window (two UTC ``datetime64[ns]``): the dark window cut to the optional
