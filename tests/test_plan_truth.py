@@ -305,3 +305,36 @@ def test_wds_row_with_dec_beyond_the_pole_is_a_problem_line():
     df = parse_wds_lines([good, bad])
     assert list(df["line_no"].astype(int)) == [1]
     assert (df["dec_deg"].abs() <= 90).all()
+
+
+# -- item 6: apertures over several nights ------------------------------------------------------
+
+def test_apertures_over_nights_name_every_pair_counted():
+    from planner.plan.apertures import compare_apertures
+
+    req = NightRequest(site={"lat_deg": 52.19, "lon_deg": -2.41, "tz": "Europe/London"}, scopes=[],
+                       date="2026-12-01", seeing_arcsec=2.0)
+    r = compare_apertures(req, [60, 80, 102, 127], date_to="2027-03-01", nights=4)
+    t = r["table"]
+    for row in t.itertuples():
+        assert len(row.added) == row.n_added
+        # before: pairs not up on the last sampled night were listed as "nan"
+        assert not any("nan" in a.lower() for a in row.added), row.added
+    assert r["pairs"][["wds_id", "discoverer"]].notna().all(axis=None)
+    assert not r["pairs"]["discoverer"].astype(str).str.lower().eq("nan").any()
+    # most interesting first: Castor (STF 1110 AB, 1.9/3.0 mag) comes before the faint pairs
+    # a 60 mm also splits, not in RA order
+    first60 = t.iloc[0]["added"]
+    assert first60.index("STF 1110 AB") < len(first60) // 2
+
+
+def test_aperture_plot_counts_from_zero_with_site_and_dates():
+    from planner.plan.apertures import compare_apertures, counts_figure
+
+    req = NightRequest(site=dict(MADRID), scopes=[], date="2026-12-02", seeing_arcsec=2.0, site_name="Madrid")
+    r = compare_apertures(req, [60, 127, 254])
+    fig = counts_figure(r)
+    ax = fig.axes[0]
+    assert ax.get_ylim()[0] == 0.0
+    title = ax.get_title()
+    assert "Madrid" in title and "40.40, -3.70" in title and "2026-12-02" in title
