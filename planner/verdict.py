@@ -75,6 +75,7 @@ from planner.optics.visibility_limit import (
     DEFAULT_EYE_PUPIL_MM,
     limiting_magnitude,
 )
+from planner.units import wrap_public
 
 #: thresholds of the verdict classes (see module docstring)
 MARGIN_SPLIT = 1.10
@@ -325,3 +326,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
         "blur_arcsec": blur,
         "limit_best_arcsec": limit_best,
     }, index=index)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

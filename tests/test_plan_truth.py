@@ -338,3 +338,60 @@ def test_aperture_plot_counts_from_zero_with_site_and_dates():
     assert ax.get_ylim()[0] == 0.0
     title = ax.get_title()
     assert "Madrid" in title and "40.40, -3.70" in title and "2026-12-02" in title
+
+
+# -- item 14: units at the public edges --------------------------------------------------------
+
+def test_quantities_are_converted_not_misread():
+    from astropy import units as u
+
+    from planner.api import airmass, dawes_limit_arcsec, rayleigh_limit_arcsec
+
+    # 4 inch = 101.6 mm: Rayleigh 1.21967 x 550 nm / 101.6 mm = 1.3619" (Rayleigh 1879 with the
+    # Airy first zero; before: 34.59", the inches read as millimetres)
+    assert rayleigh_limit_arcsec(4 * u.imperial.inch) == pytest.approx(rayleigh_limit_arcsec(101.6), rel=1e-9)
+    assert rayleigh_limit_arcsec(4 * u.imperial.inch) == pytest.approx(1.3619, abs=1e-3)
+    # 10 cm = 100 mm: Dawes 115.8/100 = 1.158" (Dawes 1867; before: 11.58")
+    assert dawes_limit_arcsec(10 * u.cm) == pytest.approx(dawes_limit_arcsec(100.0), rel=1e-12)
+    assert dawes_limit_arcsec(10 * u.cm) == pytest.approx(1.158, abs=1e-3)
+    # 0.5 rad = 28.65 deg: Pickering (2002) airmass about 2.08 (before: 31.7, radians read as degrees)
+    assert airmass(0.5 * u.rad) == pytest.approx(airmass(np.degrees(0.5)), rel=1e-12)
+    assert 2.0 < airmass(0.5 * u.rad) < 2.2
+
+
+@pytest.mark.parametrize("call", [
+    lambda u, m: m.dawes_limit_arcsec(3 * u.s),
+    lambda u, m: m.airmass(30 * u.m),
+    lambda u, m: m.Telescope(aperture_mm=2 * u.kg),
+    lambda u, m: m.judge(2.0 * u.arcsec, 5.0, 6.0, 1.2, 102.0, 1.5 * u.s),
+])
+def test_unconvertible_quantities_are_refused_with_one_clear_error(call):
+    from astropy import units as u
+
+    import planner.api as m
+    from planner.errors import InputError
+
+    with pytest.raises(InputError, match="is not a"):
+        call(u, m)
+
+
+def test_plan_night_takes_astropy_time_and_earthlocation():
+    from astropy import units as u
+    from astropy.coordinates import EarthLocation
+    from astropy.time import Time
+
+    from planner.api import plan_night
+
+    loc = EarthLocation(lat=40.4 * u.deg, lon=-3.7 * u.deg, height=650 * u.m)
+    # 22:00 UTC = 23:00 in Madrid on 2 December: the evening of 2026-12-02
+    p = plan_night(loc, [{"aperture_mm": 5 * u.imperial.inch}], Time("2026-12-02T22:00:00", scale="utc"),
+                   tz="Europe/Madrid", seeing_arcsec=2 * u.arcsec, limit=3)
+    assert p.request.date == "2026-12-02"
+    assert p.request.site["lat_deg"] == pytest.approx(40.4) and p.request.site["tz"] == "Europe/Madrid"
+    assert p.request.scopes[0]["aperture_mm"] == pytest.approx(127.0)
+    ref = _madrid(limit=3)
+    assert list(p.schedule["wds_id"]) == list(ref.schedule["wds_id"])
+    # an instant after midnight (01:30 local on the 3rd) is still the night of the 2nd
+    p2 = plan_night(loc, [{"aperture_mm": 127.0}], Time("2026-12-03T00:30:00", scale="utc"), tz="Europe/Madrid",
+                    limit=1)
+    assert p2.request.date == "2026-12-02"

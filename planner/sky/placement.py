@@ -47,6 +47,7 @@ from planner.sky import atmosphere as atm
 from planner.sky._astrometry import OMEGA_RAD_S, altaz_rad, astrom_at, to_utc64, validate_radec
 from planner.sky.night import Night, sun_alt_deg
 from planner.sky.site import Site
+from planner.units import wrap_public
 
 __all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place", "FastAltAz"]
 
@@ -507,3 +508,7 @@ def _sky_mag(site: Site, night: Night, best64, alt_true_deg, moon, moon_sep):
         b_tw = 0.0
     out = atm.mag_from_nl(b_dark + b_moon + b_tw)
     return np.where(alt_true_deg >= 0.0, out, np.nan)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())
