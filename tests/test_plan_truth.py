@@ -252,25 +252,27 @@ def test_highest_power_follows_the_seeing():
 
 # -- item 11: wide pairs ---------------------------------------------------------------------------
 
-def _has_stt547_af(p):
+def _stt547_af(p):
     c = p.scopes[0].candidates
-    return bool(((c["discoverer"] == "STT 547") & (c["components"] == "AF")).any())
+    return c[(c["discoverer"] == "STT 547") & (c["components"] == "AF")]
 
 
-def test_wide_pairs_are_left_out_of_a_close_double_plan(window_plan):
+def test_wide_pairs_are_left_out_of_a_close_double_plan():
     p = _madrid()
     # default ceiling: 40 x Dawes (115.8"/127 mm = 0.912", Dawes 1867) = 36.5" (project choice)
     ceiling = 40.0 * 115.8 / 127.0
-    assert (p.scopes[0].candidates["rho_arcsec"] <= ceiling + 1e-9).all()
-    assert not _has_stt547_af(p)  # 327" (before: scheduled in the close-double list)
+    assert (p.schedule["rho_arcsec"] <= ceiling + 1e-9).all()
+    af = _stt547_af(p)  # 327" (before: scheduled in the close-double list)
+    assert len(af) == 1 and af["plan_status"].iloc[0] == "wider than the close-double ceiling"
     assert any("too easy for a close-double list" in n for n in p.notes)
+    assert "wider than the close-double ceiling" in p.scopes[0].summary
 
 
 def test_the_ceiling_is_overridable():
-    assert _has_stt547_af(_madrid(wide_factor=0))
-    assert _has_stt547_af(_madrid(filters={"sep_max_arcsec": 400.0}))
+    for p in (_madrid(wide_factor=0), _madrid(filters={"sep_max_arcsec": 400.0})):
+        assert _stt547_af(p)["plan_status"].iloc[0] != "wider than the close-double ceiling"
     few = _madrid(wide_factor=10)  # 9.1"
-    assert (few.scopes[0].candidates["rho_arcsec"] <= 10 * 115.8 / 127.0 + 1e-9).all()
+    assert (few.schedule["rho_arcsec"] <= 10 * 115.8 / 127.0 + 1e-9).all()
 
 
 # -- item 15: WDS ids with an impossible declination ---------------------------------------------

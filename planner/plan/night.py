@@ -224,6 +224,7 @@ STATUS_SCHEDULED = "scheduled"
 STATUS_SCHEDULED_NEAR = "scheduled as a near miss"
 STATUS_NOT_UP = "not up in the dark for one slot"
 STATUS_NO_DARK = "no dark window on this date"
+STATUS_TOO_WIDE = "wider than the close-double ceiling"
 STATUS_NO_SLOT = "no free slot near its best time"
 STATUS_NEAR = "near miss (shown with --challenges)"
 STATUS_OTHER_SCOPE = "on another telescope's share"
@@ -246,6 +247,8 @@ def plan_status(j: pd.DataFrame, sched: pd.DataFrame, cut_by_limit, limit, chall
     st[no] = np.char.add("does not split: ", reason.astype(str).to_numpy()[no].astype(str)).astype(object)
     if shared_out is not None:
         st[j.index.isin(shared_out)] = STATUS_OTHER_SCOPE
+    if "too_wide" in j:
+        st[j["too_wide"].to_numpy(bool)] = STATUS_TOO_WIDE
     st[j.index.isin(list(cut_by_limit))] = f"beyond --limit {limit}"
     st[~up] = STATUS_NOT_UP
     if len(sched):
@@ -422,8 +425,6 @@ class NightTable:
     catalog: object
     epoch: float
     minutes: float = 10.0
-    wide_ceiling_arcsec: float | None = None   # the close-double ceiling applied (None: none)
-    n_too_wide: int = 0                        # pairs left out by it
 
     @property
     def up(self) -> np.ndarray:
@@ -467,42 +468,32 @@ def prepare(session: Session, catalog=None) -> NightTable:
     table = pd.concat([placed[keep_cols], geo], axis=1)
     table = table[np.isfinite(table["rho_arcsec"].to_numpy(float))]
     table = apply_filters(table, request.filters, cat)
-    ceiling = wide_ceiling_arcsec(session)
-    n_wide = 0
-    if ceiling is not None:
-        wide = table["rho_arcsec"].to_numpy(float) > ceiling
-        n_wide = int(wide.sum())
-        table = table[~wide]
-    return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes,
-                      wide_ceiling_arcsec=ceiling, n_too_wide=n_wide)
+    return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes)
 
 
-#: default close-double ceiling: pairs wider than this many Dawes limits of the (smallest)
-#: aperture are left out of the plan (project choice, common practice, no source: at 40 x Dawes a
-#: pair is split at the lowest power and says nothing about the telescope; 45" for 102 mm, 23" for
-#: 203 mm).  ``NightRequest.wide_factor`` overrides it (0: no ceiling); ``--sep-max`` and a target
-#: list replace it.
+#: default close-double ceiling: pairs wider than this many Dawes limits of the telescope are not
+#: scheduled for it (project choice, common practice, no source: at 40 x Dawes a pair is split at
+#: the lowest power and says nothing about the telescope; 45" for 102 mm, 23" for 203 mm).
+#: ``NightRequest.wide_factor`` overrides it (0: no ceiling); ``--sep-max`` and a target list
+#: replace it.
 WIDE_FACTOR = 40.0
 
 
-def wide_ceiling_arcsec(session: Session) -> float | None:
-    """The separation above which a pair is too wide for a close-double plan, or None.
+def wide_ceiling_arcsec(request: NightRequest, tel: Telescope) -> float | None:
+    """The separation above which a pair is too wide for a close-double plan with ``tel``, or None.
 
     ``WIDE_FACTOR`` (or the request's ``wide_factor``) times the Dawes limit (Dawes 1867,
-    115.8"/D[mm]) of the smallest telescope in the session, so each telescope keeps every pair
-    interesting for it.  None when the observer set a separation ceiling (``sep_max_arcsec``),
-    gave a target list, or asked for none (``wide_factor = 0``)."""
+    115.8"/D[mm]) of the telescope.  None when the observer set a separation ceiling
+    (``sep_max_arcsec``), gave a target list, or asked for none (``wide_factor = 0``)."""
     from planner.optics.limits import dawes_limit_arcsec
 
-    r = session.request
-    f = r.filters or {}
-    factor = WIDE_FACTOR if getattr(r, "wide_factor", None) is None else float(r.wide_factor)
+    f = request.filters or {}
+    factor = WIDE_FACTOR if request.wide_factor is None else float(request.wide_factor)
     if factor < 0:
         raise InputError(f"wide_factor {factor:g} must be 0 (no ceiling) or more")
-    if factor == 0 or f.get("sep_max_arcsec") is not None or f.get("targets") or not session.telescopes:
+    if factor == 0 or f.get("sep_max_arcsec") is not None or f.get("targets"):
         return None
-    d_min = min(float(t.aperture_mm) for t in session.telescopes)
-    return factor * float(dawes_limit_arcsec(d_min))
+    return factor * float(dawes_limit_arcsec(float(tel.aperture_mm)))
 
 
 @dataclass(frozen=True)
@@ -536,10 +527,6 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                      seeing_arcsec=seeing, seeing_origin=session.seeing_origin, scopes=[],
                      cautions=list(CAUTIONS), session=session)
     plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
-    if nt.n_too_wide:
-        plan.notes.append(f"{nt.n_too_wide} pair{'' if nt.n_too_wide == 1 else 's'} wider than {nt.wide_ceiling_arcsec:.0f}\" left out as too easy for a "
-                          f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
-                          " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
     plan.notes += [f"{name}: limits and chances use your calibration ({cal.sentence()})"
                    for name, cal in session.calibrations]
     up = nt.up
@@ -564,8 +551,15 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         chal_assign = club.share_challenges(judged)
     for js in judged:
         j, name = js.table, js.name
-        split = j[(j["verdict"] == "split") & j["up"]]
-        chal = j[(j["verdict"] == "challenge") & j["up"]]
+        ceiling = wide_ceiling_arcsec(request, js.telescope)
+        wide = (j["rho_arcsec"].to_numpy(float) > ceiling) if ceiling is not None else np.zeros(len(j), bool)
+        j = j.assign(too_wide=wide)
+        if wide.any():
+            plan.notes.append(f"{name}: pairs wider than {ceiling:.0f}\" are not scheduled, as too easy for a "
+                              f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
+                              " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
+        split = j[(j["verdict"] == "split") & j["up"] & ~j["too_wide"]]
+        chal = j[(j["verdict"] == "challenge") & j["up"] & ~j["too_wide"]]
         if assign is not None:
             split = split[split.index.isin(assign.get(name, []))]
             chal = chal[chal.index.isin(chal_assign.get(name, []))]
