@@ -11,6 +11,7 @@ import datetime as dt
 from pathlib import Path
 
 from planner.motion.epochs import calendar_date_from_jd
+from planner.report.angles import dec_text, ra_text
 
 def _f(v, fmt: str, missing: str = "-") -> str:
     return missing if v is None else format(v, fmt)
@@ -60,9 +61,12 @@ def render_report(rep: dict) -> str:
             meas += f": {last['rho_arcsec']:.1f}\" at {_f(last['theta_deg'], '.0f')} deg"
         lines.append(f"last measure {meas} ({_f(rep['years_since_measure'], '.0f')} yr ago)")
     lines.append(f"note        {rep['reason']}")
-    lines.append(f"position    RA {rep['ra_date_deg']:.4f} deg, Dec {rep['dec_date_deg']:+.4f} deg"
-                 " (J2000 axes, proper motion to the date)" if rep["ra_date_deg"] is not None else
-                 "position    unknown")
+    if rep["ra_date_deg"] is not None:
+        lines.append(f"position    RA {ra_text(rep['ra_date_deg'])} = {rep['ra_date_deg']:.4f} deg,"
+                     f" Dec {dec_text(rep['dec_date_deg'])} = {rep['dec_date_deg']:+.4f} deg"
+                     " (J2000 axes, proper motion to the date)")
+    else:
+        lines.append("position    unknown")
     return "\n".join(lines) + "\n"
 
 
