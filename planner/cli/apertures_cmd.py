@@ -22,6 +22,7 @@ def arguments(p) -> None:
     g.add_argument("--obstruction", type=float, default=0.0, metavar="RATIO",
                    help="Central obstruction ratio for every aperture (default 0).")
     opt.air(g)
+    opt.add(g, "calibration")
     opt.catalog(g)
     g.add_argument("--minutes", type=float, metavar="MIN",
                    help="A pair must be up this long in the dark (default 10).")
@@ -51,7 +52,7 @@ def run(a) -> None:
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,
-                        mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only)
+                        mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only, calibration=a.calibration)
     res = compare_apertures(req, sizes, date_to=date_to, nights=nights)
     t = res["table"]
     doc = {"dates": res["dates"], "seeing_arcsec": res["seeing_arcsec"], "obstruction": res["obstruction"],
@@ -63,6 +64,8 @@ def run(a) -> None:
         d = res["dates"]
         span = d[0] if len(d) == 1 else f"{d[0]} .. {d[-1]} ({len(d)} nights sampled)"
         print(f"Pairs split, {span}; seeing {res['seeing_origin']}; obstruction {res['obstruction']:.2f}")
+        for name, cal in res.get("calibrations", ()):
+            print(terminal_text(f"{name}: {cal.header()}", one_line=True))
         print(f"{'aperture':>9} {'pairs':>6} {'added':>6}  first few added")
         for r in t.itertuples():
             few = terminal_text(", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else ""))

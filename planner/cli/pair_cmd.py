@@ -342,7 +342,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
 
 def tonight_report(catalog, label, *, site=None, lat=None, lon=None, elevation=None, tz=None, min_alt=None,
                    date=None, scope=None, aperture=None, obstruction=None, seeing=None, steadiness=None,
-                   darkness=None) -> dict:
+                   darkness=None, calibration=None) -> dict:
     """The verdict for one telescope tonight (or on the evening of ``date``):
     :func:`planner.plan.single.check_pair` with the site, telescope and seeing
     resolved exactly as ``splitplan night`` resolves them."""
@@ -359,7 +359,7 @@ def tonight_report(catalog, label, *, site=None, lat=None, lon=None, elevation=N
                         steadiness=steadiness, darkness=darkness)
     seeing_arcsec, seeing_origin = resolve_seeing(req)
     rep = check_pair(catalog, label, req.site, req.date, req.scopes[0], seeing_arcsec,
-                     darkness=req.darkness, minutes=req.minutes)
+                     darkness=req.darkness, minutes=req.minutes, calibration=calibration)
     rep["telescope"] = req.scopes[0]
     rep["tz"] = str(req.site.get("tz", "UTC")) if isinstance(req.site, dict) else "UTC"
     rep["seeing_arcsec"] = seeing_arcsec
@@ -389,6 +389,8 @@ def render_tonight(rep: dict) -> str:
     if t.get("name") and t["name"] != f"{t.get('aperture_mm', 0):g} mm":
         tel = f"{t['name']} ({tel})"
     lines = ["", f"tonight     evening of {rep['date']} with {tel}, seeing {rep['seeing_origin']}"]
+    if rep.get("calibration"):
+        lines.append(f"chance      {rep['calibration']}")
     if rep["dark_start_utc"]:
         lines.append(f"dark window {_local(rep['dark_start_utc'], tz)} to {_local(rep['dark_end_utc'], tz)}"
                      f" ({rep['darkness']}, {tz})")
@@ -434,6 +436,35 @@ def arguments(p) -> None:
     opt.site(t)
     opt.telescope(t, many=False)
     opt.air(t)
+    opt.add(t, "calibration")
+
+
+def last_attempts(wds_id: str, components: str) -> list[dict]:
+    """The latest attempts at this pair in the observation log (none when there is no log)."""
+    from planner.config.storage import log_path
+
+    if not log_path().exists():
+        return []
+    from planner.config.logbook import Logbook
+    from planner.plan.observations import last_attempts as _last
+
+    with Logbook(create=False) as log:
+        return _last(log, wds_id, components or None, n=3)
+
+
+def render_attempts(rows: list[dict]) -> str:
+    """Plain-text lines of the last attempts."""
+    from planner.cli.log_cmd import _local, _scope_text
+
+    if not rows:
+        return ""
+    lines = [""]
+    for k, e in enumerate(rows):
+        head = "your log    " if k == 0 else " " * 12
+        note = f" ({e['note']})" if e.get("note") else ""
+        lines.append(f"{head}{_local(e)}: {e['result']} with {_scope_text(e)}, margin "
+                     f"{'-' if e.get('margin') is None else format(e['margin'], '.2f')}{note}")
+    return "\n".join(lines) + "\n"
 
 
 def run(a) -> None:
@@ -460,10 +491,12 @@ def run(a) -> None:
         tonight = tonight_report(cat, label, site=site, lat=lat, lon=lon, elevation=elevation, tz=tz,
                                  min_alt=min_alt, date=date, scope=scope, aperture=aperture,
                                  obstruction=obstruction, seeing=seeing, steadiness=steadiness,
-                                 darkness=darkness)
-    elif any(v is not None for v in (seeing, steadiness, darkness, obstruction, elevation, tz, min_alt)):
+                                 darkness=darkness, calibration=a.calibration)
+    elif any(v is not None for v in (seeing, steadiness, darkness, obstruction, elevation, tz, min_alt,
+                                     a.calibration)):
         raise InputError("a verdict needs a site (--site or --lat/--lon/--tz) and a telescope (--aperture or --scope)")
     table = year_table(cat, label, epochs, precession) if epochs is not None else None
+    attempts = last_attempts(rep["wds_id"], rep["components"])
     if plot is not None:
         written = plot_pair(cat, label, epoch_yr, plot, precession)
         print(f"splitplan: wrote {written}", file=sys.stderr)
@@ -472,6 +505,8 @@ def run(a) -> None:
             rep["table"] = table
         if tonight is not None:
             rep["tonight"] = tonight
+        if attempts:
+            rep["log"] = attempts
         sys.stdout.write(json.dumps(rep, indent=2) + "\n")
         return
     from planner.report.safe import terminal_text
@@ -479,6 +514,7 @@ def run(a) -> None:
     text = render_report(rep)
     if tonight is not None:
         text += render_tonight(tonight)
+    text += render_attempts(attempts)
     if table is not None:
         text += "\n" + render_table(table)
     sys.stdout.write(terminal_text(text))

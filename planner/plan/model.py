@@ -44,6 +44,8 @@ class NightRequest:
     filters: dict = field(default_factory=dict)
     share_margin: float = 1.5         # club sharing: "comfortable" margin
     calibration: str | None = None    # "mine": the chance curve fitted to the observation log
+    skip_done: bool | None = None     # leave out pairs the log says this scope has split
+    prefer_new: bool | None = None    # rank pairs never tried with this scope first
 
     def to_dict(self) -> dict:
         d = asdict(self)

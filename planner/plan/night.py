@@ -35,6 +35,7 @@ from planner.motion.epochs import to_epoch_yr
 from planner.optics.telescope import Telescope
 from planner.plan import club
 from planner.plan.model import SCHEDULE_COLUMNS, NightPlan, NightRequest, ScopePlan
+from planner.plan.observations import apply_log, flag_done
 from planner.plan.schedule import greedy_schedule
 from planner.plan.score import score_pairs
 from planner.plan.session import Session
@@ -405,6 +406,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         j = judge_scope(tel, table, vis, seeing, session.site.min_alt_deg)
         j["up"] = up
         judged.append(JudgedScope(telescope=tel, spec=sd, table=j))
+    judged = apply_log(judged, request, plan.notes)
     if not session.has_window:
         ninfo = session.night_info
         plan.notes.append(str(ninfo.get("note") or ninfo.get("status") or "no dark window on this date"))
@@ -434,6 +436,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
             parts.append(extra)
         sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
             else empty_schedule()
+        sched = flag_done(sched, j)
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
         if assign is None:
