@@ -126,6 +126,9 @@ def add_run(a) -> None:
                                site_name=site_name, scope_name=scope_name, catalog=a.catalog or "sample")
     print(f"added entry {e['id']}: {_pair_label(e)}, {e['result']}, {_local(e)}, {_scope_text(e)}; "
           f"margin {_num(e['margin'], '.2f')}, model chance {_num(e['chance'] and 100 * e['chance'], '.0f')} %")
+    if e["alt_deg"] is not None and e["alt_deg"] < 0:
+        print(f"splitplan: note: the pair was below the horizon then (altitude {e['alt_deg']:.0f} deg); "
+              "check --when and the site (correct with 'splitplan log remove' and add again)", file=sys.stderr)
 
 
 ADD = Command("add", arguments=add_arguments, run=add_run, usage="PAIR --result RESULT",
