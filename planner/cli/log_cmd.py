@@ -165,14 +165,14 @@ def _utc_day(text: str, what: str, shift_days: int = 0) -> str:
 
 def select(a, log) -> list[dict]:
     """The entries the list filters select."""
-    from planner.plan.calibration import scope_key
+    from planner.api import scope_key
 
     for r in a.result or []:
         _check_result(r)
     wds = None
     comps = None
     if a.pair:
-        from planner.catalogs import find_pair, load_catalog
+        from planner.api import find_pair, load_catalog
 
         cat = load_catalog(a.catalog or "sample")
         row = cat.pairs.loc[find_pair(cat, a.pair)]
@@ -322,7 +322,7 @@ def mark_run(a) -> None:
     from planner.api import record_observations
     from planner.cli.night_cmd import request_from_plan
     from planner.errors import InputError
-    from planner.plan.night import plan_night
+    from planner.api import plan_request as plan_night
     from planner.report.exports import iso_utc
 
     req = request_from_plan(a.planfile)
@@ -497,9 +497,8 @@ def fit_arguments(p) -> None:
 
 def fit_run(a) -> None:
     """Fit your split curve to the log."""
-    from planner.api import fit_observations, reliability_table
+    from planner.api import fit_observations, reliability_table, scope_key
     from planner.errors import InputError
-    from planner.plan.calibration import scope_key
 
     if a.scope and a.pooled:
         raise InputError("give either --scope NAME or --pooled, not both")
