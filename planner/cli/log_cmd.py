@@ -480,6 +480,7 @@ def backup_run(a) -> None:
 
 
 BACKUP = Command("backup", arguments=backup_arguments, run=backup_run, usage="FILE",
+                 summary="Write a complete, consistent copy of the log (SQLite backup).",
                  help="Write a complete, consistent copy of the log (SQLite backup), e.g. to move it to "
                       "another computer.")
 
