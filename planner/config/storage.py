@@ -43,6 +43,8 @@ from pathlib import Path
 from planner.errors import InputError, PlannerError
 
 APP = "splitplan"
+#: the observation log's file in the user data directory (see planner.config.logbook)
+LOG_FILE_NAME = "observations.sqlite3"
 
 MB = 1024 * 1024
 
@@ -210,6 +212,11 @@ def user_dir(kind: str) -> Path:
     except OSError as exc:
         raise PlannerError(f"cannot create the {kind} directory {path}: {exc.strerror}") from None
     return path
+
+
+def log_path() -> Path:
+    """Where the observation log lives (the file may not exist yet)."""
+    return user_dir("data") / LOG_FILE_NAME
 
 
 def atomic_write_bytes(path: str | os.PathLike, data: bytes, make_dirs: bool = True) -> Path:
