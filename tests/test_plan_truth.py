@@ -397,3 +397,92 @@ def test_plan_night_takes_astropy_time_and_earthlocation():
     p2 = plan_night(loc, [{"aperture_mm": 127.0}], Time("2026-12-03T00:30:00", scale="utc"), tz="Europe/Madrid",
                     limit=1)
     assert p2.request.date == "2026-12-02"
+
+
+# -- item 7: target lists and sessions ---------------------------------------------------------
+
+from pathlib import Path  # noqa: E402
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
+BRACKENFOLD = {"lat_deg": 52.1873, "lon_deg": -2.4127, "elevation_m": 95.0, "tz": "Europe/London"}
+
+
+@pytest.fixture(scope="module")
+def club_targets():
+    from planner.config.planfile import read_plan_file
+    from planner.plan.night import plan_night
+
+    data = read_plan_file(EXAMPLES / "brackenfold-session.toml", what="session file")
+    req = NightRequest(site=dict(data["site"]), scopes=[dict(s) for s in data["scopes"]], date="2026-12-05",
+                       seeing_arcsec=1.5, filters={"targets": str(EXAMPLES / "brackenfold-targets.csv")})
+    return plan_night(req)
+
+
+def test_every_listed_target_appears_scheduled_or_with_its_reason(club_targets):
+    from planner.catalogs import read_target_list
+    from planner.report.exports import render_text
+
+    listed = read_target_list(EXAMPLES / "brackenfold-targets.csv")
+    t = club_targets.targets
+    assert list(t["query"]) == list(listed["query"])
+    assert (t["status"].str.len() > 0).all()
+    # 70 Oph (RA 18 h) sets in the December twilight: said, not dropped (before: no word)
+    oph = t[t["query"] == "STF2272AB"].iloc[0]
+    assert "not up in the dark" in oph["status"]
+    text = render_text(club_targets)
+    for q in listed["query"]:
+        assert q in text
+    # the bundled list names every pair the way the catalogue has it (before: 'STF 2383 Cc',
+    # copied from a table that cut 'Cc-D' short, matched nothing)
+    assert not t["status"].str.startswith("not in the catalogue").any()
+
+
+def test_target_notes_travel_to_every_export(club_targets, tmp_path):
+    from planner.report import write_report
+
+    s = club_targets.schedule
+    castor = s[s["discoverer"] == "STF 1110"]
+    assert list(castor["user_note"]) == ["Castor"]
+    for ext in ("csv", "json", "html", "txt"):
+        out = tmp_path / f"plan.{ext}"
+        write_report(club_targets, out)
+        assert "Castor" in out.read_text("utf-8"), ext
+
+
+def test_session_near_miss_counts_agree_with_the_matrix(club_targets):
+    import re
+
+    m = club_targets.matrix
+    for sp in club_targets.scopes:
+        n_near = int(re.search(r"(\d+) near misses", sp.summary).group(1))
+        assert n_near == int((m[sp.name] == "near").sum()), sp.name
+
+
+def test_scope_and_scopes_are_one_spelling(tmp_path, capsys):
+    from planner.config.planfile import read_plan_file
+
+    body = '[site]\nlat_deg = 52.19\nlon_deg = -2.41\ntz = "Europe/London"\n'
+    new = tmp_path / "new.toml"
+    new.write_text(body + '[[scopes]]\naperture_mm = 102\n', "utf-8")
+    old = tmp_path / "old.toml"
+    old.write_text(body + '[[scope]]\naperture_mm = 102\n', "utf-8")
+    assert read_plan_file(new)["scopes"] == read_plan_file(old)["scopes"] == [{"aperture_mm": 102}]
+    err = capsys.readouterr().err
+    assert err.count("[[scope]] is the old spelling") == 1
+
+
+# -- item 4: identifiers are never cut -----------------------------------------------------------
+
+def test_identifiers_are_shown_whole(club_targets):
+    from planner.report.exports import render_text
+
+    text = render_text(club_targets)
+    assert "STF 2383 Cc-D" in text
+    from planner.report.exports import table_lines
+
+    rows = pd.DataFrame([{"slot": 1, "slot_local": "21:00", "wds_id": "16290-2626", "discoverer": "STF 1938",
+                          "components": "Ba,Bb", "rho_arcsec": 2.0, "theta_deg": 10.0, "method": "orbit",
+                          "mag1": 5.0, "mag2": 6.0, "alt_deg": 40.0, "airmass": 1.5, "limit_arcsec": 1.5,
+                          "margin": 1.3, "chance": 0.9, "power_min": 90.0, "power_max": 150.0,
+                          "reason": "should split cleanly", "flag": "", "user_note": ""}])
+    assert "16290-2626 STF 1938 Ba,Bb" in "\n".join(table_lines(rows))

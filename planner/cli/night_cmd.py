@@ -36,9 +36,9 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
             site_d, site_name = dict(data["site"]), str(data.get("site_name", ""))
         elif isinstance(data.get("site"), str):
             site_d, site_name = profiles.get("site", data["site"]), data["site"]
-        for sc in list(data.get("scopes", [])) + list(data.get("scope", [])):
+        for sc in list(data.get("scopes", [])):
             if not isinstance(sc, dict):
-                raise InputError(f"session file {session}: each [[scope]] must be a table")
+                raise InputError(f"session file {session}: each [[scopes]] must be a table")
             if "profile" in sc:
                 d = profiles.get("scope", sc["profile"])
                 d["name"] = sc.get("name", sc["profile"])

@@ -75,7 +75,9 @@ def share(judged: list, share_margin: float = 1.5, slack: int = 2):
                         "components": base["components"].to_numpy()[rows],
                         "best_score": best[rows]}, index=idx)
     for k, n in enumerate(names):
-        mat[n] = np.where(splits[rows, k], "split", np.where(verdicts[rows, k] == "challenge", "near", "-"))
+        # "near" only for a near miss that is up in the dark, as the scopes' own counts
+        mat[n] = np.where(splits[rows, k], "split",
+                          np.where((verdicts[rows, k] == "challenge") & up[rows], "near", "-"))
         mat[f"{n} margin"] = margins[rows, k]
     mat["assigned"] = [names[a] for a in assigned[rows]]
     mat = mat.sort_values("best_score", ascending=False, kind="stable")

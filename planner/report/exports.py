@@ -165,13 +165,18 @@ def header_lines(plan) -> list[str]:
     return out
 
 
+def pair_label(wds_id, discoverer, components) -> str:
+    """'WDS id discoverer components', never cut: identifiers are shown whole in every output."""
+    return f"{wds_id} {f'{discoverer} {components}'.strip()}".strip()
+
+
 def table_lines(sched: pd.DataFrame) -> list[str]:
-    head = (f"{'#':>2} {'time':5} {'pair':<22} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+    ids = [pair_label(r.wds_id, r.discoverer, r.components) for r in sched.itertuples(index=False)]
+    w = max([22] + [len(x) for x in ids])  # the pair column widens; an identifier is never cut
+    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
             f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
     lines = [head, "-" * len(head)]
-    for r in sched.itertuples(index=False):
-        name = f"{r.discoverer} {r.components}".strip()
-        pid = f"{r.wds_id} {name}"[:22]
+    for pid, r in zip(ids, sched.itertuples(index=False)):
         how = {"orbit": "orbit", "orbit-interferometric": "orb-if", "linear": "linear",
                "last": "last"}.get(str(r.method), str(r.method))[:6]
         mags = f"{fmt_num(r.mag1, '.1f')}/{fmt_num(r.mag2, '.1f')}"
@@ -179,7 +184,9 @@ def table_lines(sched: pd.DataFrame) -> list[str]:
         note = str(r.reason)
         if r.flag:
             note = f"[{r.flag}] " + note
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+        if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
+            note += f" - your note: {r.user_note}"
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {fmt_num(r.rho_arcsec, '6.2f')}\" "
                      f"{fmt_num(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
@@ -209,14 +216,27 @@ def render_text(plan) -> str:
             out.append("")
             out.append("   Challenges (near misses - may not split tonight):")
             out += ["   " + x for x in table_lines(chal)]
+    targets = getattr(plan, "targets", None)
+    if targets is not None and len(targets):
+        out.append("")
+        out.append(f"== Your targets ({len(targets)} listed): scheduled, or why not")
+        w = max(len(str(q)) for q in targets["query"])
+        for t in targets.itertuples(index=False):
+            line = f"   {str(t.query):<{w}}  {t.pair or '-'}: {t.status}"
+            if str(t.user_note).strip():
+                line += f"  (your note: {t.user_note})"
+            out.append(line)
     if plan.matrix is not None and len(plan.matrix):
         out.append("")
         out.append("== Who splits what (split / near / -), and who takes it")
         names = [s.name for s in plan.scopes]
-        out.append(f"   {'pair':<24}" + "".join(f"{n[:10]:>11}" for n in names) + "   assigned")
-        for idx, r in plan.matrix.head(40).iterrows():
-            label = f"{r['wds_id']} {r['discoverer']} {r['components']}"[:24]
-            out.append(f"   {label:<24}" + "".join(f"{r[n]:>11}" for n in names) + f"   {r['assigned']}")
+        shown = plan.matrix.head(40)
+        labels = [pair_label(r["wds_id"], r["discoverer"], r["components"]) for _, r in shown.iterrows()]
+        w = max([24] + [len(x) for x in labels])
+        cw = [max(10, len(n)) + 1 for n in names]
+        out.append(f"   {'pair':<{w}}" + "".join(f"{n:>{c}}" for n, c in zip(names, cw)) + "   assigned")
+        for label, (idx, r) in zip(labels, shown.iterrows()):
+            out.append(f"   {label:<{w}}" + "".join(f"{r[n]:>{c}}" for n, c in zip(names, cw)) + f"   {r['assigned']}")
         if len(plan.matrix) > 40:
             out.append(f"   ... {len(plan.matrix) - 40} more (use --out FILE.csv/.html for all)")
     out.append("")

@@ -78,9 +78,25 @@ def _rows(plan, sched: pd.DataFrame) -> str:
             f'<td class="n">{_f(r.limit_arcsec, ".2f")}″<br><span class="sub">×{_f(r.margin, ".2f")}</span></td>'
             f'<td class="n">{_f(100 * float(r.chance), ".0f")}%</td>'
             f'<td class="n">{_f(r.power_min, ".0f")}–{_f(r.power_max, ".0f")}×</td>'
-            f"<td>{E(r.reason)}</td>"
+            f"<td>{E(r.reason)}{_user_note(r)}</td>"
             "</tr>")
     return "\n".join(out)
+
+
+def _user_note(r) -> str:
+    note = str(getattr(r, "user_note", "") or "").strip()
+    return f'<br><span class="sub">your note: {E(note)}</span>' if note and note != "nan" else ""
+
+
+def _targets(plan) -> str:
+    t = getattr(plan, "targets", None)
+    if t is None or len(t) == 0:
+        return ""
+    rows = "".join(f"<tr><td>{E(r.query)}</td><td>{E(r.pair or '-')}</td><td>{E(r.status)}</td>"
+                   f"<td>{E(r.user_note)}</td></tr>" for r in t.itertuples(index=False))
+    return ('<section class="card"><h2>Your targets</h2><p class="sub">Every name of the target list: '
+            'scheduled, or why not.</p><table><tr><th>listed as</th><th>pair</th><th>tonight</th>'
+            f"<th>your note</th></tr>{rows}</table></section>")
 
 
 TABLE_HEAD = ("<tr><th>#</th><th>slot (local)</th><th>pair</th><th>ρ / θ tonight</th><th>from</th>"
@@ -207,6 +223,7 @@ def render_html(plan) -> str:
     ]
     parts += [_scope_section(plan, sp) for sp in plan.scopes]
     parts.append(_calibration(plan))
+    parts.append(_targets(plan))
     parts.append(_matrix(plan))
     if diagrams:
         parts.append('<section class="card"><h2>The pairs as seen</h2><p class="sub">North up, east left '

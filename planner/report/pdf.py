@@ -76,6 +76,8 @@ def _table_pages(plan, pdf, plt):
         rows = []
         for r in sched.itertuples(index=False):
             note = (f"[{r.flag}] " if r.flag else "") + ("CHALLENGE: " if r.section == "challenge" else "") + str(r.reason)
+            if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
+                note += f" - your note: {r.user_note}"
             rows.append([str(r.slot), f"{r.slot_local}", f"{r.discoverer} {r.components}".strip(), str(r.wds_id),
                          _f(r.rho_arcsec, ".2f"), _f(r.theta_deg, ".0f"), str(r.method),
                          f"{_f(r.mag1, '.1f')}/{_f(r.mag2, '.1f')}", _f(r.alt_deg, ".0f"), _f(r.airmass, ".2f"),
