@@ -486,3 +486,54 @@ def test_identifiers_are_shown_whole(club_targets):
                           "margin": 1.3, "chance": 0.9, "power_min": 90.0, "power_max": 150.0,
                           "reason": "should split cleanly", "flag": "", "user_note": ""}])
     assert "16290-2626 STF 1938 Ba,Bb" in "\n".join(table_lines(rows))
+
+
+# -- items 5 and 12: time zone labels, wording, clock changes ------------------------------------
+
+def test_times_are_labelled_with_their_zone_not_called_local():
+    from planner.report.exports import header_lines
+
+    p = _madrid(limit=1)
+    head = "\n".join(header_lines(p))
+    assert " local" not in head  # before: UTC times labelled "local" when no --tz was given
+    assert "Europe/Madrid" in head.splitlines()[1]
+    assert "Moon at most" in head  # the night's maximum, said as such
+
+
+def test_no_tz_defaults_to_the_computers_zone_and_says_so(cli, monkeypatch):
+    monkeypatch.setenv("TZ", "Europe/Madrid")
+    code, out, err = cli("night", "--lat", "40.4", "--lon", "-3.7", "--aperture", "127", "--date", "2026-12-02",
+                         "--limit", "1")
+    assert code == 0, err
+    assert "Europe/Madrid (this computer's time zone)" in err
+    # dark from 18:52 Madrid time (17:52 UTC; sunset and nautical twilight as the sky engine)
+    assert "18:52 - 07:16 Europe/Madrid" in out
+
+
+def test_clock_change_inside_the_night_is_marked():
+    from planner.plan.night import plan_night
+    from planner.report.exports import render_text
+
+    # Europe/London leaves summer time at 02:00 BST on Sunday 2026-10-25 (EU rule: last Sunday of
+    # October, 01:00 UTC)
+    p = plan_night(NightRequest(site={"lat_deg": 51.5, "lon_deg": 0.0, "tz": "Europe/London"},
+                                scopes=[{"aperture_mm": 102.0}], date="2026-10-24", seeing_arcsec=1.5))
+    text = render_text(p)
+    assert "clocks go back 1 h here (BST -> GMT)" in text
+    s = p.schedule[p.schedule["section"] == "plan"]
+    after = s["slot_start_utc"] >= np.datetime64("2026-10-25T01:00:00")
+    assert after.any() and (~after).any()
+
+
+def test_orbit_only_last_observation_is_not_called_a_last_measure():
+    from planner.catalogs import load_catalog
+    from planner.plan.pair_report import pair_report
+    from planner.report.pair import render_report
+
+    cat = load_catalog("sample")
+    from planner.catalogs import find_pair
+
+    rep = pair_report(cat, find_pair(cat, "HLD 60"), 2026.92)
+    text = render_report(rep.geometry)
+    assert "last observation used by the orbit: 1961" in text
+    assert "last measure 1961" not in text

@@ -60,8 +60,13 @@ def _png(fig) -> str:
 
 
 def _rows(plan, sched: pd.DataFrame) -> str:
+    from planner.report.exports import _clock_marks
+
+    marks = _clock_marks(sched, plan.session.site.tz)
     out = []
-    for r in sched.itertuples(index=False):
+    for k, r in enumerate(sched.itertuples(index=False)):
+        if k in marks:
+            out.append(f'<tr><td colspan="11" class="sub"><b>{E(marks[k].strip("- "))}</b></td></tr>')
         flag = f' <span class="flag">{E(r.flag)}</span>' if r.flag else ""
         how = {"orbit": "orbit", "orbit-interferometric": "orbit (interf.)", "linear": "linear est.",
                "last": "last measure"}.get(str(r.method), str(r.method))
@@ -99,7 +104,7 @@ def _targets(plan) -> str:
             f"<th>your note</th></tr>{rows}</table></section>")
 
 
-TABLE_HEAD = ("<tr><th>#</th><th>slot (local)</th><th>pair</th><th>ρ / θ tonight</th><th>from</th>"
+TABLE_HEAD = ("<tr><th>#</th><th>slot (site's clock)</th><th>pair</th><th>ρ / θ tonight</th><th>from</th>"
               "<th>mags</th><th>alt / airmass</th><th>limit / margin</th><th>chance</th>"
               "<th>power</th><th>why</th></tr>")
 
@@ -164,10 +169,10 @@ def _night(plan) -> str:
     n = plan.night
     items = [("date (evening)", n.get("local_date", "")),
              ("darkness", plan.request.darkness),
-             ("dark window", f"{local_hm(plan, n.get('dark_start_utc'))} – {local_hm(plan, n.get('dark_end_utc'))} local"),
+             ("dark window", f"{local_hm(plan, n.get('dark_start_utc'))} – {local_hm(plan, n.get('dark_end_utc'))} {plan.session.site.tz}"),
              ("sunset / sunrise", f"{local_hm(plan, n.get('sunset_utc'))} / {local_hm(plan, n.get('sunrise_utc'))}")]
     if n.get("moon_illumination") is not None:
-        items.append(("Moon", f"{100 * float(n['moon_illumination']):.0f}% lit, above the horizon for "
+        items.append(("Moon", f"at most {100 * float(n['moon_illumination']):.0f}% lit during the night, above the horizon for "
                               f"{n.get('moon_up', '?')} of the window"))
     if n.get("status"):
         items.append(("status", n["status"]))
@@ -232,6 +237,6 @@ def render_html(plan) -> str:
                      f'<div class="diagrams">{diagrams}</div></section>')
     parts.append("<footer>Made with splitplan "
                  f"{E(plan.version)}. Catalogue data: Washington Double Star Catalog and Sixth Catalog of "
-                 "Orbits of Visual Binary Stars, U.S. Naval Observatory. Times in the site's local time.</footer>")
+                 "Orbits of Visual Binary Stars, U.S. Naval Observatory. Times on the site's clock, in its time zone (shown with the night).</footer>")
     parts.append("</main></body></html>")
     return "\n".join(parts)

@@ -32,8 +32,8 @@ def _cover(plan, pdf, plt):
         "Telescopes: " + "; ".join(scope_label(sc) for sc in r.scopes),
         f"Seeing: {plan.seeing_origin}",
         f"Darkness: {r.darkness}; dark window {local_hm(plan, n.get('dark_start_utc'))} - "
-        f"{local_hm(plan, n.get('dark_end_utc'))} local",
-        (f"Moon: {100 * float(n['moon_illumination']):.0f}% lit, above the horizon for {n.get('moon_up', '?')} of the window"
+        f"{local_hm(plan, n.get('dark_end_utc'))} {s.tz}",
+        (f"Moon: at most {100 * float(n['moon_illumination']):.0f}% lit during the night, above the horizon for {n.get('moon_up', '?')} of the window"
          if n.get("moon_illumination") is not None else "Moon: -"),
         f"{r.minutes:g} min per target, "
         + (f"at most {r.limit} pairs per scope" if r.limit else "as many pairs as the night holds")
