@@ -11,6 +11,7 @@ import datetime as dt
 from pathlib import Path
 
 from planner.motion.epochs import calendar_date_from_jd
+from planner.report.angles import dec_text, ra_text
 
 def _f(v, fmt: str, missing: str = "-") -> str:
     return missing if v is None else format(v, fmt)
@@ -66,9 +67,12 @@ def render_report(rep: dict) -> str:
             lines.append(f"orbit data  last observation used by the orbit: {meas} ({ago}; the pair may have "
                          "been measured since)")
     lines.append(f"note        {rep['reason']}")
-    lines.append(f"position    RA {rep['ra_date_deg']:.4f} deg, Dec {rep['dec_date_deg']:+.4f} deg"
-                 " (J2000 axes, proper motion to the date)" if rep["ra_date_deg"] is not None else
-                 "position    unknown")
+    if rep["ra_date_deg"] is not None:
+        lines.append(f"position    RA {ra_text(rep['ra_date_deg'])} = {rep['ra_date_deg']:.4f} deg,"
+                     f" Dec {dec_text(rep['dec_date_deg'])} = {rep['dec_date_deg']:+.4f} deg"
+                     " (J2000 axes, proper motion to the date)")
+    else:
+        lines.append("position    unknown")
     return "\n".join(lines) + "\n"
 
 
