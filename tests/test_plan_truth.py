@@ -458,6 +458,21 @@ def test_session_near_miss_counts_agree_with_the_matrix(club_targets):
         assert n_near == int((m[sp.name] == "near").sum()), sp.name
 
 
+def test_full_session_near_miss_counts_agree_with_the_matrix():
+    import re
+
+    from planner.config.planfile import read_plan_file
+    from planner.plan.night import plan_night
+
+    data = read_plan_file(EXAMPLES / "brackenfold-session.toml", what="session file")
+    p = plan_night(NightRequest(site=dict(data["site"]), scopes=[dict(s) for s in data["scopes"]],
+                                date="2026-12-05", steadiness=6, challenges=True))
+    for sp in p.scopes:
+        # before: the 203 mm said "19 near misses" beside a matrix with none for it
+        n_near = int(re.search(r"(\d+) near misses", sp.summary).group(1))
+        assert n_near == int((p.matrix[sp.name] == "near").sum()), sp.name
+
+
 def test_scope_and_scopes_are_one_spelling(tmp_path, capsys):
     from planner.config.planfile import read_plan_file
 
