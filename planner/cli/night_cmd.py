@@ -53,7 +53,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
         if site:
             raise InputError("give either --site NAME or --lat/--lon, not both")
         if tz is None:
-            from planner.sky.site import computer_tz
+            from planner.api import computer_tz
 
             tz = computer_tz()
             print(f"splitplan: note: no --tz given; times are shown in {tz} (this computer's time zone)",
