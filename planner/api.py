@@ -16,9 +16,11 @@ is cheap.  Example::
 
 from __future__ import annotations
 
+from planner.config.fields import DEFAULT_DARKNESS, DEFAULT_MINUTES, DEFAULT_SEEING_ARCSEC
 
-def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
-               catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
+
+def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness=DEFAULT_DARKNESS,
+               catalog="sample", minutes=DEFAULT_MINUTES, limit=None, challenges=False, filters=None, site_name="",
                start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5):
     """The night plan (a :class:`planner.plan.model.NightPlan`); see :mod:`planner.plan.night`.
 
@@ -44,7 +46,7 @@ def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, 
     return _plan(req, catalog=cat)
 
 
-def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_arcsec=2.0, **kw):
+def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_arcsec=DEFAULT_SEEING_ARCSEC, **kw):
     """Verdict, best time tonight and best dates of the year for one pair; see
     :func:`planner.plan.single.check_pair`."""
     from planner.plan.single import check_pair as _check
@@ -53,8 +55,8 @@ def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_ar
 
 
 def compare_apertures(site, apertures_mm, date=None, *, date_to=None, nights=4, obstruction=0.0,
-                      seeing_arcsec=None, steadiness=None, darkness="nautical", catalog="sample",
-                      minutes=10.0, filters=None):
+                      seeing_arcsec=None, steadiness=None, darkness=DEFAULT_DARKNESS, catalog="sample",
+                      minutes=DEFAULT_MINUTES, filters=None):
     """Pairs split per aperture (and what each step adds); see :mod:`planner.plan.apertures`."""
     from planner.plan.apertures import compare_apertures as _cmp
     from planner.plan.model import NightRequest

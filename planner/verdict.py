@@ -261,7 +261,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     faint = np.isfinite(mag_margin) & (mag_margin < 0)
     near_faint = np.isfinite(mag_margin) & (mag_margin >= 0) & (mag_margin < MAG_CHALLENGE)
     fails_perfect = rho < limit_best
-    first_ring_lod = 2.233  # second dark ring of the clear aperture, lambda/D (methods-reference 1)
+    first_ring_lod = 2.233  # second dark ring of the clear aperture, lambda/D (docs/methods.md section 1)
     ring_zone = rho < first_ring_lod * lod
     ok_at_zenith = rho >= MARGIN_CHALLENGE * limit_zenith
     conds = [

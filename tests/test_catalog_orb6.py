@@ -1,13 +1,12 @@
 """Validation of the ORB6 reader against the USNO ORB6 orbits text file.
 
 Catalogue: Sixth Catalog of Orbits of Visual Binary Stars (USNO; Hartkopf,
-Mason & Worley 2001), text version, late-2008 snapshot kept in
-../shared/reference/orb6_orbits.txt (and bundled in catalogs_sample/).
-Expected values are read by eye from the lines of that file (quoted beside
-each check with the line number) or taken from the counts in
-../shared/reference/README.md.  Unit conversions are checked against the
-definitions in ../shared/reference/FORMATS.md section B; the Besselian-year
-formula is Lieske (1979), A&A 73, 282.
+Mason & Worley 2001), text version, late-2008 snapshot bundled in
+catalogs_sample/orb6_orbits.txt.  Expected values are read by eye from the
+lines of that file (quoted beside each check with the line number) or counted
+from it (docs/catalogs.md).  Unit conversions are checked against the ORB6
+format's unit flags (Hartkopf, Mason & Worley 2001; docs/catalogs.md); the
+Besselian-year formula is Lieske (1979), A&A 73, 282 (docs/methods.md section 7).
 """
 
 from __future__ import annotations

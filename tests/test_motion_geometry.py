@@ -5,7 +5,7 @@ What is checked, against what:
 * proper motion to the date against astropy ``SkyCoord.apply_space_motion``
   (reference library; no distance given) to 0.01 mas;
 * rectilinear extrapolation against hand-computed straight-line motion
-  (USNO rectilinear elements, x = x0 + v t; methods-reference section 7), and
+  (USNO rectilinear elements, x = x0 + v t; docs/methods.md section 7), and
   the growth of its uncertainty with time (model stated in the module,
   common practice, no source);
 * pair_geometry on the bundled real sample (USNO ORB6 + WDS rows): the

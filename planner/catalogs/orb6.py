@@ -1,7 +1,7 @@
 """Reader for the text version of the USNO Sixth Catalog of Orbits of Visual
 Binary Stars (ORB6; Hartkopf, Mason & Worley 2001, AJ 122, 3472).
 
-Layout: ``/work/shared/reference/FORMATS.md`` section B (USNO
+Layout: the Sixth Orbit Catalog format (Hartkopf, Mason & Worley 2001, AJ 122, 3472; column layout in docs/catalogs.md) (USNO
 ``orb6format.txt`` plus the ruler lines of the file).  Every field is read by
 column range; the ranges are one or two columns wider than the published
 ones where the data show values starting early (errors of P, a, T; the two

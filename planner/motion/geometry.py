@@ -120,7 +120,7 @@ def linear_positions(rho_first, theta_first_deg, year_first, rho_last, theta_las
 
     Rectilinear motion x = x0 + vx (t - t0), y = y0 + vy (t - t0) as in the
     USNO catalogues of rectilinear elements (Hartkopf & Mason, LIN1/LIN2;
-    methods-reference section 7), here through the first and last catalogued
+    docs/methods.md section 7), here through the first and last catalogued
     measures only.  Motion test and uncertainty model: module docstring.
 
     Returns a DataFrame (positional index) with ``moving`` (bool),

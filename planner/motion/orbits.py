@@ -10,7 +10,7 @@ Sources
   *Double Stars* (Reidel), ch. 4; Aitken, R. G. 1935, *The Binary Stars*;
   check values: Meeus, J. 1998, *Astronomical Algorithms* 2nd ed., ch. 57
   (eta CrB, Example 57.a).  Formulas as written in the project's
-  methods-reference section 7.
+  docs/methods.md section 7.
 * Kepler's equation: :mod:`planner.motion.kepler`.
 * Precession of the position angle, first order:
   ``d theta = 0.00557 deg x sin(alpha) sec(delta) x (t - t0)`` (annual
@@ -40,7 +40,7 @@ from planner.motion.epochs import to_epoch_yr
 from planner.motion.kepler import solve_kepler
 
 #: Annual precession in position angle per unit sin(alpha) sec(delta) [deg/yr]
-#: (n = 20.043"/yr; methods-reference section 7).
+#: (n = 20.043"/yr; docs/methods.md section 7).
 PRECESSION_RATE_DEG_PER_YR = 0.00557
 
 #: Grades (ORB6 column 234).
@@ -90,7 +90,7 @@ def _col(df: pd.DataFrame, name: str, default=np.nan) -> np.ndarray:
 def thiele_innes(a_arcsec, incl_deg, node_deg, omega_deg):
     """Thiele-Innes constants (A, B, F, G) [arcsec] from Campbell elements.
 
-    Source: Heintz (1978); Meeus (1998) ch. 57; methods-reference section 7::
+    Source: Heintz (1978); Meeus (1998) ch. 57; docs/methods.md section 7::
 
         A = a( cos w cos W - sin w sin W cos i)
         B = a( cos w sin W + sin w cos W cos i)
@@ -127,7 +127,7 @@ def precession_pa_deg(ra_deg, dec_deg, years):
 def orbit_xy(period_yr, t_peri_yr, ecc, A, B, F, G, epoch_yr):
     """Offsets (x north, y east) [arcsec] at ``epoch_yr``; all inputs broadcast.
 
-    Steps (methods-reference section 7): M = 2 pi (t - T) / P; Kepler for E;
+    Steps (docs/methods.md section 7): M = 2 pi (t - T) / P; Kepler for E;
     X = cos E - e; Y = sqrt(1 - e^2) sin E; x = A X + F Y; y = B X + G Y.
     """
     M = 2.0 * np.pi * (np.asarray(epoch_yr, dtype=float) - t_peri_yr) / period_yr

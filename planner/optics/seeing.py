@@ -11,7 +11,7 @@ JOSA 56, 1372 (r0); 0.98 lambda / r0 (Dierickx 1992; used in DIMM reductions);
 long-exposure Kolmogorov transfer function exp(-3.44 (lambda f / r0)^(5/3))
 (Fried 1966); outer-scale (von Karman) factor: Tokovinin, A. 2002, PASP 114,
 1156, as used in the ESO exposure-time calculators.  Check values in
-methods-reference section 3.
+docs/methods.md section 3.
 """
 
 from __future__ import annotations
@@ -40,7 +40,7 @@ def seeing_fwhm_arcsec(seeing_arcsec, airmass=1.0, wavelength_nm=550.0):
 
     ``seeing_arcsec`` is the FWHM at 500 nm at the zenith.  Scaling
     X^0.6 lambda^-0.2 (ESO; Fried 1966).  Check: 1.00" at X = 2, 550 nm gives
-    1.00 x 0.9811 x 1.5157 = 1.487" (methods-reference section 3).
+    1.00 x 0.9811 x 1.5157 = 1.487" (docs/methods.md section 3).
     """
     s = _nonneg(seeing_arcsec, "seeing_arcsec", "a seeing FWHM in arcsec, 0 or more (e.g. 2)")
     x = np.asarray(airmass, dtype=float)

@@ -11,7 +11,10 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field, fields
 
-DARKNESS = ("civil", "nautical", "astronomical")
+from planner.config.fields import DARKNESS, DEFAULT_DARKNESS, DEFAULT_MINUTES
+from planner.errors import InputError
+
+__all__ = ["NightRequest", "NightPlan", "ScopePlan", "SCHEDULE_COLUMNS", "DARKNESS"]
 
 #: Columns of a schedule table (one row per scheduled pair), in display order.
 SCHEDULE_COLUMNS = (
@@ -33,9 +36,9 @@ class NightRequest:
     date: str | None = None          # local date YYYY-MM-DD of the evening; None = tonight
     seeing_arcsec: float | None = None
     steadiness: float | None = None
-    darkness: str = "nautical"
+    darkness: str = DEFAULT_DARKNESS
     catalog: str = "sample"
-    minutes: float = 10.0
+    minutes: float = DEFAULT_MINUTES
     limit: int | None = None         # pairs per scope; None = as many as the window holds
     challenges: bool = False
     start_local: str | None = None   # HH:MM, cut the window
@@ -51,17 +54,18 @@ class NightRequest:
 
     @classmethod
     def from_dict(cls, d: dict) -> "NightRequest":
-        from planner.errors import InputError
-
         names = {f.name for f in fields(cls)}
         kw = {k: v for k, v in d.items() if k in names}
         if "site" not in kw or "scopes" not in kw:
             raise InputError("a plan file needs a [site] table and at least one [[scopes]] table")
+        if not isinstance(kw["site"], dict):
+            raise InputError(f"a plan file's site must be a [site] table, not {kw['site']!r}")
+        if not isinstance(kw["scopes"], list) or not all(isinstance(s, dict) for s in kw["scopes"]):
+            raise InputError("a plan file's telescopes must be [[scopes]] tables")
+        if not isinstance(kw.get("filters", {}), dict):
+            raise InputError("a plan file's filters must be a [filters] table")
         return cls(**kw)
 
-
-FILTER_KEYS = ("mag_max", "mag2_max", "dm_max", "sep_min_arcsec", "sep_max_arcsec",
-               "constellations", "ra_from_h", "ra_to_h", "orbits_only", "targets")
 
 
 @dataclass

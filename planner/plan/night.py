@@ -40,6 +40,7 @@ from planner.plan.score import score_pairs
 from planner.plan.session import Session
 from planner.sky.atmosphere import airmass
 from planner.sky.night import sun_alt_deg, sun_sep_deg
+from planner.sky.constellations import constellation_abbreviations, constellation_of
 from planner.sky.placement import FastAltAz, alt_az_at, visibility
 from planner.verdict import judge
 
@@ -59,26 +60,6 @@ CAUTIONS = (
 
 
 # -- filters ------------------------------------------------------------------------
-
-def constellation_of(ra_deg, dec_deg) -> np.ndarray:
-    """IAU constellation abbreviation per position (astropy ``get_constellation``, vectorised)."""
-    from astropy.coordinates import SkyCoord, get_constellation
-
-    ra = np.asarray(ra_deg, float)
-    if ra.size == 0:
-        return np.array([], dtype=object)
-    c = SkyCoord(ra=ra, dec=np.asarray(dec_deg, float), unit="deg", frame="icrs")
-    return np.asarray(get_constellation(c, short_name=True), dtype=object)
-
-
-def constellation_abbreviations() -> set[str]:
-    """The 88 IAU constellation abbreviations, lower case (astropy's data file of
-    the IAU names, the same one ``get_constellation`` uses)."""
-    from importlib import resources
-
-    text = (resources.files("astropy.coordinates") / "data" / "constellation_names.dat").read_text()
-    return {ln.split()[0].lower() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")}
-
 
 def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFrame:
     """Keep the rows that pass the user's filters (all vectorised)."""
@@ -107,8 +88,11 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
         keep &= np.char.startswith(method.astype(str), "orbit")
     if f.get("constellations"):
         wanted = {c.strip().lower() for c in f["constellations"]}
+        unknown = sorted(wanted - constellation_abbreviations())
+        if unknown:
+            raise InputError(f"constellation {unknown[0]!r} is not an IAU constellation abbreviation (e.g. Cyg, UMa, Boo)")
         cons = constellation_of(table["ra_deg"].to_numpy(float), table["dec_deg"].to_numpy(float))
-        keep &= np.array([c.lower() in wanted for c in cons], bool) if len(cons) else keep
+        keep &= np.isin(np.char.lower(cons.astype(str)), list(wanted)) if len(cons) else keep
     out = table[keep]
     if f.get("targets"):
         out = restrict_to_targets(out, f["targets"], catalog)

@@ -31,7 +31,7 @@ RAD_ARCSEC = 206264.806
 
 
 def airy_radius_arcsec(aperture_mm: float, wavelength_nm: float = 550.0) -> float:
-    """First dark ring of the Airy pattern, 1.2197 lambda/D (Airy 1835; methods-reference s.1)."""
+    """First dark ring of the Airy pattern, 1.2197 lambda/D (Airy 1835; docs/methods.md section 1)."""
     return 1.21967 * wavelength_nm * 1e-9 / (aperture_mm * 1e-3) * RAD_ARCSEC
 
 
