@@ -57,7 +57,7 @@ import numpy as np
 import pandas as pd
 
 from planner.errors import InputError
-from planner.optics.limits import ARCSEC_PER_RAD, check_criterion, lod_arcsec
+from planner.optics.limits import AIRY_FWHM_LOD, check_criterion, lod_arcsec
 from planner.optics.rules import required_separation_arcsec
 from planner.optics.separability import (
     DEFAULT_CONTRAST,
@@ -65,6 +65,7 @@ from planner.optics.separability import (
     effective_blur_lod,
 )
 from planner.optics.telescope import Telescope
+from planner.units import ARCSEC_PER_RAD
 from planner.optics.visibility_limit import (
     DEFAULT_EXTINCTION_K,
     DEFAULT_EYE_PUPIL_MM,
@@ -217,7 +218,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     # -- magnification ------------------------------------------------------
     lod = float(lod_arcsec(ap, lam))
     blur = effective_blur_lod(ap, see, xcalc, lam, steady_fraction, disp) * lod
-    blur_tot = np.hypot(blur, 1.028 * lod)
+    blur_tot = np.hypot(blur, AIRY_FWHM_LOD * lod)
     power_max = np.minimum(power_per_mm * ap, BLUR_APPARENT_MAX_ARCSEC / blur_tot)
     with np.errstate(divide="ignore", invalid="ignore"):
         power_min = np.maximum(eye_resolution_arcsec / rho, ap / eye_pupil_mm)

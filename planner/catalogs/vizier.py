@@ -45,8 +45,8 @@ import numpy as np
 import pandas as pd
 
 from planner.catalogs.catalog import Catalog, empty_table, merge, note
-from planner.catalogs.orb6 import (AXIS_FACTORS, PERIOD_FACTORS, TROPICAL_YEAR_D,
-                                   besselian_from_jd, mark_preferred, split_designation)
+from planner.catalogs.orb6 import AXIS_FACTORS, PERIOD_FACTORS, mark_preferred, split_designation
+from planner.utc import TROPICAL_YEAR_D, besselian_year_from_jd
 from planner.config.storage import atomic_write_bytes, atomic_write_text, user_dir
 from planner.catalogs._fixed import user_path as _user_path
 from planner.errors import CatalogError, NetworkError
@@ -232,7 +232,7 @@ def orb6_from_table(table) -> pd.DataFrame:
         t_code = np.full(n, "d")
     jd = np.where(t_raw > 1e6, t_raw, t_raw + 2400000.0)
     t_yr = np.select([t_code == "d", t_code == "m", t_code == "c"],
-                     [besselian_from_jd(jd), besselian_from_jd(t_raw + 2400000.5), t_raw * 100.0],
+                     [besselian_year_from_jd(jd), besselian_year_from_jd(t_raw + 2400000.5), t_raw * 100.0],
                      default=t_raw)
     t_ef = np.select([(t_code == "d") | (t_code == "m"), t_code == "c"],
                      [1.0 / TROPICAL_YEAR_D, 100.0], default=1.0)

@@ -87,14 +87,10 @@ def find(catalog_spec: str, query: str):
 
 
 def _clean(v):
-    """JSON-friendly scalar: NaN -> None, numpy -> Python."""
-    import math
+    """JSON-friendly scalar (planner.schema.plain_value)."""
+    from planner.schema import plain_value
 
-    if hasattr(v, "item"):
-        v = v.item()
-    if isinstance(v, float) and not math.isfinite(v):
-        return None
-    return v
+    return plain_value(v)
 
 
 def _sub_catalog(catalog, label, k: int = 1):
@@ -185,7 +181,7 @@ _METHOD_TEXT = {
 
 def render_report(rep: dict) -> str:
     """Plain-text report of :func:`geometry_report`."""
-    from planner.motion.epochs import JD_B1900
+    from planner.utc import JD_B1900
 
     lines = []
     mags = ""

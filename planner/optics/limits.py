@@ -23,9 +23,8 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 
-#: arcseconds per radian
-ARCSEC_PER_RAD = 206264.80624709636
 #: first zero of J1 divided by pi: radius of the first dark ring in lambda/D
 RAYLEIGH_LOD = 1.2196698912665045
 #: Sparrow separation of two equal Airy patterns, lambda/D (root of the midpoint
@@ -104,20 +103,6 @@ def check_criterion(criterion: str) -> str:
 def limit_arcsec(aperture_mm, wavelength_nm=550.0, model: str = "dawes"):
     """Classical equal-pair limit by name (``LIMIT_MODELS``: dawes, rayleigh, sparrow)."""
     return LIMIT_MODELS[check_criterion(model)](aperture_mm, wavelength_nm)
-
-
-def criterion_lod(criterion: str, wavelength_nm=550.0) -> float:
-    """The classical limit of ``criterion`` expressed in lambda/D at ``wavelength_nm``.
-
-    Dawes is an arcsecond figure independent of wavelength; in lambda/D it is
-    1.021 at 550 nm (docs/methods.md section 1).
-    """
-    key = check_criterion(criterion)
-    if key == "rayleigh":
-        return RAYLEIGH_LOD
-    if key == "sparrow":
-        return SPARROW_LOD
-    return float(dawes_limit_arcsec(100.0) / lod_arcsec(100.0, wavelength_nm))
 
 
 def airy_radius_um(focal_length_mm, aperture_mm, wavelength_nm=550.0):

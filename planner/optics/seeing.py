@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 
 #: FWHM of the long-exposure Kolmogorov PSF in units of lambda / r0 (Dierickx 1992)
 FWHM_PER_LAMBDA_R0 = 0.98
@@ -53,15 +54,11 @@ def seeing_fwhm_arcsec(seeing_arcsec, airmass=1.0, wavelength_nm=550.0):
 def fried_r0_m(seeing_arcsec, wavelength_nm=500.0):
     """Fried parameter r0 [m] for a long-exposure FWHM [arcsec] at ``wavelength_nm``:
     r0 = 0.98 lambda / FWHM (Fried 1966; Dierickx 1992)."""
-    from planner.optics.limits import ARCSEC_PER_RAD
-
     return FWHM_PER_LAMBDA_R0 * np.asarray(wavelength_nm) * 1e-9 / (np.asarray(seeing_arcsec) / ARCSEC_PER_RAD)
 
 
 def seeing_from_r0_arcsec(r0_m, wavelength_nm=500.0):
     """Long-exposure FWHM [arcsec] = 0.98 lambda / r0 (Fried 1966; Dierickx 1992)."""
-    from planner.optics.limits import ARCSEC_PER_RAD
-
     return FWHM_PER_LAMBDA_R0 * np.asarray(wavelength_nm) * 1e-9 / np.asarray(r0_m) * ARCSEC_PER_RAD
 
 
@@ -78,10 +75,10 @@ def von_karman_factor(aperture_m, outer_scale_m, r0_m):
 
 def total_fwhm_arcsec(seeing_fwhm, aperture_mm, wavelength_nm=550.0):
     """Quadrature sum of seeing and telescope FWHM (ESO ETC practice), with
-    FWHM_tel = 1.028 lambda/D.  Check: D = 200 mm, 1.0" -> 1.158"."""
-    from planner.optics.limits import lod_arcsec
+    FWHM_tel = 1.029 lambda/D (AIRY_FWHM_LOD).  Check: D = 200 mm, 1.0" -> 1.158"."""
+    from planner.optics.limits import AIRY_FWHM_LOD, lod_arcsec
 
-    tel = 1.028 * lod_arcsec(aperture_mm, wavelength_nm)
+    tel = AIRY_FWHM_LOD * lod_arcsec(aperture_mm, wavelength_nm)
     return np.hypot(np.asarray(seeing_fwhm, dtype=float), tel)
 
 

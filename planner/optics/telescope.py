@@ -8,6 +8,7 @@ from dataclasses import dataclass, field
 
 from planner.config.fields import APERTURE_MAX_MM, APERTURE_MIN_MM, TELESCOPE_KINDS, check
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 
 __all__ = ["Telescope", "KINDS", "APERTURE_MIN_MM", "APERTURE_MAX_MM"]
 
@@ -115,8 +116,6 @@ class Telescope:
         """Sky angle of one camera pixel [arcsec] = 206.265 x pixel[um] / f[mm]."""
         if not self.has_camera:
             return None
-        from planner.optics.limits import ARCSEC_PER_RAD
-
         return self.pixel_um * 1e-3 / self.focal_length_mm * ARCSEC_PER_RAD
 
     def limit_arcsec(self, criterion: str = "dawes") -> float:

@@ -14,6 +14,7 @@ import pandas as pd
 
 from planner.config.storage import atomic_write_bytes, atomic_write_text
 from planner.report.safe import csv_cell, terminal_text
+from planner.schema import plain_value
 from planner.utc import iso_utc
 
 #: the fields every JSON object carries (the stable contract) -- all of them
@@ -25,17 +26,6 @@ CONTRACT_FIELDS = ("wds_id", "discoverer", "components", "slot_start_utc", "slot
 _TIME_COLS = ("slot_start_utc", "slot_end_utc", "best_utc")
 
 
-def _clean(v):
-    if isinstance(v, (np.floating, float)):
-        f = float(v)
-        return None if math.isnan(f) or math.isinf(f) else round(f, 6)
-    if isinstance(v, (np.integer,)):
-        return int(v)
-    if isinstance(v, (np.bool_,)):
-        return bool(v)
-    return v
-
-
 def records(schedule: pd.DataFrame) -> list[dict]:
     """One JSON-ready dict per scheduled pair (contract fields first)."""
     cols = list(CONTRACT_FIELDS) + [c for c in schedule.columns if c not in CONTRACT_FIELDS]
@@ -43,7 +33,7 @@ def records(schedule: pd.DataFrame) -> list[dict]:
     for row in schedule[cols].itertuples(index=False, name=None):
         d = {}
         for c, v in zip(cols, row):
-            d[c] = iso_utc(v) if c in _TIME_COLS else _clean(v)
+            d[c] = iso_utc(v) if c in _TIME_COLS else plain_value(v, 6)
         out.append(d)
     return out
 

@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 
 __all__ = [
     "AIRMASS_MODELS",
@@ -264,7 +265,7 @@ def dispersion_arcsec(alt_deg, band_nm=VISUAL_BAND_NM, pressure_hpa=1013.25,
     dn = n1 - n2
     with np.errstate(divide="ignore", invalid="ignore"):
         tanz = 1.0 / np.tan(np.radians(np.maximum(h, 1e-6)))
-        high = 206264.806 * dn * tanz
+        high = ARCSEC_PER_RAD * dn * tanz
         nref = refractivity_filippenko1982(550.0, pressure_hpa, temperature_c, water_vapour_hpa)
         low = refraction_bennett1982(h, pressure_hpa, temperature_c) * 60.0 * dn / nref
     out = np.where(h >= 15.0, high, low)
