@@ -26,11 +26,11 @@ def one_error_line(err: str) -> str:
 @pytest.mark.parametrize("extra, words", [
     (["--minutes", "0"], ["minutes", "240"]),
     (["--sep-min", "5", "--sep-max", "1"], ["--sep-min 5", "--sep-max 1"]),
-    (["--dm-max", "-1"], ["--dm-max -1", "0 or more"]),
-    (["--sep-min", "-1"], ["--sep-min -1", "0 or more"]),
+    (["--dm-max", "-1"], ["--dm-max -1", "allowed 0 to"]),
+    (["--sep-min", "-1"], ["--sep-min -1", "allowed 0 to"]),
     (["--constellation", "Xyz"], ["'Xyz'", "IAU"]),
     (["--start", "23:00", "--end", "22:00"], ["--start 23:00", "--end 22:00"]),
-    (["--share-margin", "-1"], ["--share-margin -1", "0.5 and 10"]),
+    (["--share-margin", "-1"], ["--share-margin -1", "0.5 to 10"]),
     (["--out", "plan.docx"], [".docx", ".html"]),
 ])
 def test_night_refuses(cli, extra, words):

@@ -40,7 +40,7 @@ from planner.plan.score import score_pairs
 from planner.plan.session import Session
 from planner.sky.atmosphere import airmass
 from planner.sky.night import sun_alt_deg, sun_sep_deg
-from planner.sky.constellations import constellation_abbreviations, constellation_of
+from planner.sky.constellations import constellation_of
 from planner.sky.placement import FastAltAz, alt_az_at, visibility
 from planner.verdict import judge
 
@@ -88,9 +88,6 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
         keep &= np.char.startswith(method.astype(str), "orbit")
     if f.get("constellations"):
         wanted = {c.strip().lower() for c in f["constellations"]}
-        unknown = sorted(wanted - constellation_abbreviations())
-        if unknown:
-            raise InputError(f"constellation {unknown[0]!r} is not an IAU constellation abbreviation (e.g. Cyg, UMa, Boo)")
         cons = constellation_of(table["ra_deg"].to_numpy(float), table["dec_deg"].to_numpy(float))
         keep &= np.isin(np.char.lower(cons.astype(str)), list(wanted)) if len(cons) else keep
     out = table[keep]

@@ -24,6 +24,7 @@ from planner.config.seeing_scale import load_scale, steadiness_to_seeing
 from planner.errors import InputError
 from planner.optics.telescope import Telescope
 from planner.plan.model import NightRequest
+from planner.sky.constellations import constellation_abbreviations
 from planner.sky.night import Night, night_for
 from planner.sky.site import Site
 
@@ -98,7 +99,11 @@ def checked(request: NightRequest) -> NightRequest:
     if not isinstance(request.scopes, (list, tuple)):
         raise InputError("the telescopes must be a list of tables ([[scopes]] in a plan file)")
     scopes = [check_mapping("telescope", sd, (*SCOPE_FIELDS, "name")) for sd in request.scopes]
-    return dataclasses.replace(request, site=site, scopes=scopes, filters=check_filters(request.filters), **kw)
+    filters = check_filters(request.filters)
+    unknown = [c for c in filters.get("constellations", []) if c.lower() not in constellation_abbreviations()]
+    if unknown:
+        raise InputError(f"--constellation {unknown[0]!r} is not an IAU constellation abbreviation (e.g. Cyg, UMa, Boo)")
+    return dataclasses.replace(request, site=site, scopes=scopes, filters=filters, **kw)
 
 
 def site_of(request: NightRequest) -> Site:
