@@ -33,6 +33,8 @@ Conventions
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import pandas as pd
 
@@ -158,7 +160,20 @@ def _status(orbits: pd.DataFrame, el: dict) -> tuple[np.ndarray, np.ndarray]:
     return status, reason
 
 
-def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool):
+@dataclass(frozen=True)
+class _Prepared:
+    """What both position functions need per orbit row: elements, status, which rows to
+    use, the Thiele-Innes constants (A, B, F, G) and the equinox the PA is precessed from."""
+
+    el: dict
+    status: np.ndarray
+    reason: np.ndarray
+    use: np.ndarray
+    abfg: tuple
+    t0: np.ndarray
+
+
+def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool) -> _Prepared:
     if precession not in PRECESSION_MODELS:
         from planner.errors import InputError
 
@@ -168,7 +183,7 @@ def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool):
     use = (status == "ok") | (status == "interferometric") | ((status == "astrometric") & astrometric)
     A, B, F, G = thiele_innes(el["a_arcsec"], el["incl_deg"], el["node_deg"], el["omega_deg"])
     t0 = PRECESSION_MODELS[precession](orbits)
-    return el, status, reason, use, (A, B, F, G), t0
+    return _Prepared(el=el, status=status, reason=reason, use=use, abfg=(A, B, F, G), t0=t0)
 
 
 def _epochs_for_rows(epoch, n: int) -> np.ndarray:
@@ -216,7 +231,9 @@ def orbit_positions(orbits: pd.DataFrame, epoch, precession: str = "j2000",
     """
     n = len(orbits)
     t = _epochs_for_rows(epoch, n)
-    el, status, reason, use, (A, B, F, G), t0 = _prepare(orbits, precession, astrometric)
+    pr = _prepare(orbits, precession, astrometric)
+    el, status, reason, use, t0 = pr.el, pr.status, pr.reason, pr.use, pr.t0
+    A, B, F, G = pr.abfg
     x, y = orbit_xy(el["period_yr"], el["t_peri_yr"], el["ecc"], A, B, F, G, t)
     x = np.where(use, x, np.nan)
     y = np.where(use, y, np.nan)
@@ -253,7 +270,9 @@ def orbit_grid(orbits: pd.DataFrame, epochs, precession: str = "j2000",
     ``theta_deg`` (2-D) and ``status`` (1-D, per orbit).
     """
     t = np.atleast_1d(np.asarray(to_epoch_yr(epochs), dtype=float))
-    el, status, reason, use, (A, B, F, G), t0 = _prepare(orbits, precession, astrometric)
+    pr = _prepare(orbits, precession, astrometric)
+    el, status, reason, use, t0 = pr.el, pr.status, pr.reason, pr.use, pr.t0
+    A, B, F, G = pr.abfg
     col = lambda v: np.asarray(v)[:, None]  # noqa: E731
     x, y = orbit_xy(col(el["period_yr"]), col(el["t_peri_yr"]), col(el["ecc"]),
                     col(A), col(B), col(F), col(G), t[None, :])

@@ -42,15 +42,15 @@ def _data_dir() -> Path:
 
 
 @lru_cache(maxsize=1)
-def _table():
-    """Roman (1987) rows as arrays: RA low (h), RA high (h), Dec low (deg), abbreviation."""
+def _table() -> dict:
+    """Roman (1987) rows as arrays: ``ral``, ``rau`` (RA low and high, h), ``decl`` (Dec low, deg), ``names``."""
     text = (_data_dir() / "constellation_data_roman87.dat").read_text("utf-8")
     rows = [ln.split() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")]
     ral = np.array([float(r[0]) for r in rows])
     rau = np.array([float(r[1]) for r in rows])
     decl = np.array([float(r[2]) for r in rows])
     names = np.array([r[3] for r in rows], dtype=object)
-    return ral, rau, decl, names
+    return {"ral": ral, "rau": rau, "decl": decl, "names": names}
 
 
 @lru_cache(maxsize=1)
@@ -87,7 +87,8 @@ def constellation_of(ra_deg, dec_deg) -> np.ndarray:
     if ra.size == 0:
         return np.array([], dtype=object)
     rah, decd = b1875_place(ra, np.asarray(dec_deg, float).ravel())
-    ral, rau, decl, names = _table()
+    t = _table()
+    ral, rau, decl, names = t["ral"], t["rau"], t["decl"], t["names"]
     # first row (top down) whose box holds the position; rows are few (357), positions many
     hit = (ral[None, :] < rah[:, None]) & (rah[:, None] < rau[None, :]) & (decd[:, None] > decl[None, :]) \
         if ra.size <= 20_000 else None
