@@ -333,14 +333,18 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
     if key == DEFAULT_CONTRAST:
         paths.append(shipped_table_path())
     from planner.config.storage import user_dir
+    from planner.errors import PlannerError
 
-    cache = user_dir("cache") / f"separability_v{TABLE_VERSION}_c{key:g}.npz"
-    paths.append(cache)
+    try:
+        cache = user_dir("cache") / f"separability_v{TABLE_VERSION}_c{key:g}.npz"
+        paths.append(cache)
+    except PlannerError:  # no cache folder (cannot be created): build in memory when needed
+        cache = None
     data = None
     for p in paths:
         if p.exists():
             try:
-                with np.load(p) as z:
+                with np.load(p, allow_pickle=False) as z:
                     data = {k: z[k] for k in z.files}
                 if int(data["version"]) != TABLE_VERSION:
                     data = None
@@ -360,7 +364,11 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
         data = build_table(contrast=key)
         buf = io.BytesIO()
         np.savez_compressed(buf, **data)
-        atomic_write_bytes(cache, buf.getvalue())
+        if cache is not None:
+            try:
+                atomic_write_bytes(cache, buf.getvalue())
+            except PlannerError:  # a cache that cannot be written only costs speed
+                pass
     data["_interp"] = {}
     for c, name in enumerate(data["criteria"]):
         tab = data["table"][c].astype(float)
