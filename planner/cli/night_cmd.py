@@ -24,7 +24,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
     """Turn command-line values into a :class:`planner.plan.model.NightRequest`."""
     from planner.config import fields, profiles
     from planner.errors import InputError
-    from planner.plan.model import NightRequest
+    from planner.api import NightRequest
 
     site_d, site_name = None, ""
     scopes: list[dict] = []
@@ -120,24 +120,39 @@ def check_filters(filters: dict) -> None:
     lo, hi = filters.get("sep_min_arcsec"), filters.get("sep_max_arcsec")
     if lo is not None and hi is not None and lo > hi:
         raise InputError(f"--sep-min {lo:g} is larger than --sep-max {hi:g}")
+    if filters.get("constellations"):
+        from planner.api import constellation_abbreviations
+
+        known = constellation_abbreviations()
+        bad = [c for c in filters["constellations"] if c.lower() not in known]
+        if bad:
+            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation abbreviation "
+                             "(e.g. Cyg, UMa, Boo)")
 
 
 OUT_FORMATS = (".csv", ".json", ".xml", ".vot", ".html", ".htm", ".pdf", ".txt")
+
+
+#: what ``--out -`` can write
+STREAM_FORMATS = ("csv", "json", "votable")
 
 
 def check_out(out: Optional[Path]) -> None:
     """Refuse an unknown --out extension before any work is done."""
     from planner.errors import InputError
 
-    if out is not None and Path(out).suffix.lower() not in OUT_FORMATS:
+    if out is not None and not opt.to_stdout(out) and Path(out).suffix.lower() not in OUT_FORMATS:
         raise InputError(f"--out {out}: unknown format {Path(out).suffix or '(none)'}; "
                          f"use one of {', '.join(OUT_FORMATS)}")
 
 
-def emit(plan, as_json: bool, out: Optional[Path]) -> None:
-    from planner.report import write_report
+def emit(plan, as_json: bool, out: Optional[Path], out_format: Optional[str] = None) -> None:
+    from planner.report import report_text, write_report
     from planner.report.exports import plan_json, render_text
 
+    if opt.to_stdout(out):  # the table alone on stdout, for a pipe
+        sys.stdout.write(report_text(plan, out_format))
+        return
     if as_json:
         sys.stdout.write(plan_json(plan) + "\n")
     else:
@@ -183,7 +198,9 @@ def arguments(p) -> None:
     o.add_argument("--json", dest="as_json", action="store_true",
                    help="Print a JSON array, one object per scheduled pair.")
     o.add_argument("--out", type=opt.path, metavar="FILE",
-                   help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt")
+                   help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt, or - for "
+                        "standard output (with --format).")
+    opt.stream_format(o, STREAM_FORMATS)
     o.add_argument("--save-plan", type=opt.path, metavar="FILE", help="Record every input in a plan file (TOML).")
     o.add_argument("--plan", dest="plan_file", type=opt.path, metavar="FILE",
                    help="Rerun the inputs recorded in a plan file.")
@@ -201,10 +218,11 @@ def run(a) -> None:
     darkness, out, plan_file, save_plan, as_json = a.darkness, a.out, a.plan_file, a.save_plan, a.as_json
     given = {k: getattr(a, k) for k in REQUEST_OPTIONS}
     from planner.errors import InputError
-    from planner.plan.night import plan_night
+    from planner.api import plan_request
 
     opt.check_darkness(darkness)
     check_out(out)
+    opt.check_stream(out, a.out_format, as_json, STREAM_FORMATS)
     if plan_file is not None:
         extra = [k for k, v in given.items() if v not in (None, False, [])]
         if extra:
@@ -212,19 +230,18 @@ def run(a) -> None:
         req = request_from_plan(plan_file)
     else:
         req = build_request(**given)
-    plan = plan_night(req)
+    plan = plan_request(req)
     if save_plan is not None:
         from planner.config.planfile import write_plan_file
 
         write_plan_file(save_plan, plan.request.to_dict(), plan.version, plan.catalog_source)
         print(f"splitplan: saved the inputs to {save_plan} (rerun with --plan {save_plan})", file=sys.stderr)
-    emit(plan, as_json, out)
+    emit(plan, as_json, out, a.out_format)
 
 
 def request_from_plan(path):
-    from planner import __version__
+    from planner.api import NightRequest, __version__
     from planner.config.planfile import read_plan_file
-    from planner.plan.model import NightRequest
 
     data = read_plan_file(path)
     v = data.get("splitplan_version")
