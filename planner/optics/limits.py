@@ -24,6 +24,7 @@ import numpy as np
 
 from planner.errors import InputError
 from planner.units import ARCSEC_PER_RAD
+from planner.units import wrap_public
 
 #: first zero of J1 divided by pi: radius of the first dark ring in lambda/D
 RAYLEIGH_LOD = 1.2196698912665045
@@ -247,3 +248,7 @@ def sparrow_lod(obstruction=0.0) -> float:
         return float(g(s / 2 + h) - 2 * g(s / 2) + g(s / 2 - h))
 
     return brentq(d2, 0.6, 1.2, xtol=1e-10)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

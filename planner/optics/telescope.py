@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 from planner.config.fields import APERTURE_MAX_MM, APERTURE_MIN_MM, TELESCOPE_KINDS, check
 from planner.errors import InputError
 from planner.units import ARCSEC_PER_RAD
+from planner.units import convert_fields
 
 __all__ = ["Telescope", "KINDS", "APERTURE_MIN_MM", "APERTURE_MAX_MM"]
 
@@ -46,6 +47,8 @@ class Telescope:
     chance_params: tuple = ()
 
     def __post_init__(self):
+        convert_fields(self)  # astropy Quantity fields (4 * u.imperial.inch) to the unit of their name
+
         # aperture, obstruction, focal length, kind and wavelength: the field table's one validator
         def num(value, label, allowed):
             try:

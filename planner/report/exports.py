@@ -213,7 +213,9 @@ def render_text(plan) -> str:
                    + (f" - {sp.summary}" if sp.summary else ""))
         sched = sp.schedule
         if sched is None or len(sched) == 0:
-            out.append("   nothing to schedule (no pair splits and stays up long enough in the dark window)")
+            out.append("   nothing to schedule" + (" (no pair splits and stays up long enough in the dark window)"
+                                                    if "not scheduled" not in sp.summary and "nothing" not in sp.summary
+                                                    else ""))
             continue
         main = sched[sched["section"] == "plan"]
         chal = sched[sched["section"] == "challenge"]

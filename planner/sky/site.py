@@ -30,6 +30,7 @@ from pathlib import Path
 
 from planner.config.fields import DEFAULT_MIN_ALT_DEG, check, check_zone
 from planner.errors import InputError
+from planner.units import convert_fields
 
 __all__ = ["Site", "Horizon"]
 
@@ -135,6 +136,7 @@ class Site:
     _zone: object = field(default=None, init=False, repr=False, compare=False)
 
     def __post_init__(self):
+        convert_fields(self)  # astropy Quantity fields (52 * u.deg, 95 * u.m) to the unit of their name
         set_ = object.__setattr__
         for key in ("lat_deg", "lon_deg", "elevation_m", "min_alt_deg", "temperature_c", "sky_mag_zenith",
                     "extinction_k"):
