@@ -106,7 +106,7 @@ class Session:
 
 #: the request's scalar fields checked by the field table (planner.config.fields)
 _SCALARS = ("darkness", "minutes", "limit", "seeing_arcsec", "steadiness", "share_margin", "start_local",
-            "end_local", "min_alt_deg", "challenges", "catalog", "site_name", "calibration")
+            "end_local", "min_alt_deg", "challenges", "catalog", "site_name", "calibration", "wide_factor")
 
 
 def checked(request: NightRequest) -> NightRequest:
