@@ -192,6 +192,8 @@ def check(name: str, value, label: str | None = None):
         except ValueError:
             raise InputError(f"{label} {_show(value)} is not a valid YYYY-MM-DD date") from None
     if f.kind == "hhmm":
+        if value.strip().lower() == "now":  # the current instant (the plan resolves it)
+            return "now"
         parts = value.strip().split(":")
         ok = len(parts) == 2 and all(p.isdigit() for p in parts) and int(parts[0]) < 24 and int(parts[1]) < 60
         if not ok:
