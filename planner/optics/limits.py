@@ -101,6 +101,20 @@ def check_criterion(criterion: str) -> str:
     return key
 
 
+def criterion_lod(criterion: str, wavelength_nm=550.0) -> float:
+    """The classical limit of ``criterion`` expressed in lambda/D at ``wavelength_nm``.
+
+    Dawes is an arcsecond figure independent of wavelength; in lambda/D it is
+    1.021 at 550 nm (docs/methods.md section 1).
+    """
+    key = check_criterion(criterion)
+    if key == "rayleigh":
+        return RAYLEIGH_LOD
+    if key == "sparrow":
+        return SPARROW_LOD
+    return float(dawes_limit_arcsec(100.0) / lod_arcsec(100.0, wavelength_nm))
+
+
 def limit_arcsec(aperture_mm, wavelength_nm=550.0, model: str = "dawes"):
     """Classical equal-pair limit by name (``LIMIT_MODELS``: dawes, rayleigh, sparrow)."""
     return LIMIT_MODELS[check_criterion(model)](aperture_mm, wavelength_nm)
