@@ -22,7 +22,7 @@ SCHEDULE_COLUMNS = (
     "wds_id", "discoverer", "components", "constellation", "ra_deg", "dec_deg",
     "rho_arcsec", "theta_deg", "method", "mag1", "mag2", "dm",
     "alt_deg", "az_deg", "airmass", "limit_arcsec", "margin", "chance", "verdict",
-    "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag",
+    "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag", "user_note",
 )
 
 
@@ -48,6 +48,8 @@ class NightRequest:
     share_margin: float = 1.5         # club sharing: "comfortable" margin
     wide_factor: float | None = None  # close-double ceiling in Dawes limits (None: default 40, 0: none)
     calibration: str | None = None    # "mine": the chance curve fitted to the observation log
+    skip_done: bool | None = None     # leave out pairs the log says this scope has split
+    prefer_new: bool | None = None    # rank pairs never tried with this scope first
 
     def to_dict(self) -> dict:
         d = asdict(self)
@@ -93,6 +95,7 @@ class NightPlan:
     matrix: object = None            # club matrix DataFrame (pairs x scopes) or None
     cautions: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    targets: object = None           # with a target list: every listed name and what became of it
     session: object = None           # the resolved planner.plan.session.Session (site, telescopes, night)
 
     @property

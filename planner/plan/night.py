@@ -35,6 +35,7 @@ from planner.motion.epochs import to_epoch_yr
 from planner.optics.telescope import Telescope
 from planner.plan import club
 from planner.plan.model import SCHEDULE_COLUMNS, NightPlan, NightRequest, ScopePlan
+from planner.plan.observations import apply_log, flag_done
 from planner.plan.schedule import greedy_schedule
 from planner.plan.score import score_pairs
 from planner.plan.session import Session
@@ -105,7 +106,55 @@ def restrict_to_targets(table: pd.DataFrame, path, catalog=None) -> pd.DataFrame
     if unmatched:
         names = ", ".join(repr(q) for q, _ in unmatched[:5])
         print(f"splitplan: note: {len(unmatched)} name(s) in {path} match no pair: {names}", file=sys.stderr)
-    return table[table.index.isin(sub.pairs.index)]
+    out = table[table.index.isin(sub.pairs.index)]
+    # the observer's note for each listed pair travels with it (schedule, exports)
+    return out.assign(user_note=sub.pairs["user_note"].reindex(out.index).fillna("").astype(str).to_numpy())
+
+
+def target_report(path, catalog, scopes: list) -> pd.DataFrame:
+    """Every entry of the observer's target list with what became of it: one row per listed
+    name (``query``, ``user_note``, ``pair``, ``status``); ``status`` is "not in the catalogue"
+    (with the closest names), or per telescope the pair's ``plan_status`` (scheduled at HH:MM, or
+    why not).  ``scopes``: the finished :class:`ScopePlan` objects."""
+    from planner.catalogs.catalog import find_pair
+    from planner.errors import UnknownPairError
+
+    rows = []
+    for q, note in zip(*[read_target_list(path)[c].tolist() for c in ("query", "note")]):
+        try:
+            lab = find_pair(catalog, q)
+        except UnknownPairError as exc:
+            sugg = list(getattr(exc, "suggestions", []) or [])[:3]
+            rows.append({"query": q, "user_note": note, "pair": "",
+                         "status": "not in the catalogue" + (f" (closest: {', '.join(sugg)})" if sugg else "")})
+            continue
+        r = catalog.pairs.loc[lab]
+        label = f"{r['wds_id']} {r['discoverer']} {r['components']}".strip()
+        parts = []
+        for sp in scopes:
+            c = sp.candidates
+            if c is None or lab not in c.index:
+                parts.append((sp.name, "left out by the filters (or no separation known tonight)"))
+                continue
+            st = str(c.loc[lab, "plan_status"]) if "plan_status" in c else ""
+            if st.startswith("scheduled") and sp.schedule is not None and len(sp.schedule):
+                s = sp.schedule
+                hit = s[(s["wds_id"] == r["wds_id"]) & (s["components"] == r["components"])]
+                if len(hit):
+                    st = f"{st} at {hit['slot_local'].iloc[0]}"
+            parts.append((sp.name, st))
+        if len(scopes) == 1:
+            status = parts[0][1] if parts else ""
+        else:
+            sched = [f"{n}: {st}" for n, st in parts if st.startswith("scheduled")]
+            if sched:
+                status = "; ".join(sched)
+            elif len({st for _, st in parts}) == 1:
+                status = f"{parts[0][1]} (every telescope)"
+            else:
+                status = "; ".join(f"{n}: {st}" for n, st in parts)
+        rows.append({"query": q, "user_note": note, "pair": label, "status": status})
+    return pd.DataFrame(rows, columns=["query", "user_note", "pair", "status"])
 
 
 # -- judging and scoring ----------------------------------------------------------
@@ -375,6 +424,7 @@ def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.D
         "power_max": v["power_max"].to_numpy(float) if "power_max" in v else np.nan,
         "score": rows["score"].to_numpy(float),
         "best_utc": _as_ns(rows["best_utc"]),
+        "user_note": (rows["user_note"].astype(str).to_numpy() if "user_note" in rows else ""),
     })
     sun_alt, sun_sep = sun_position(site, t0, out["ra_deg"].to_numpy(), out["dec_deg"].to_numpy())
     out["sun_alt_deg"] = sun_alt
@@ -516,6 +566,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         j = judge_scope(tel, table, vis, seeing, session.site.min_alt_deg)
         j["up"] = up
         judged.append(JudgedScope(telescope=tel, spec=sd, table=j))
+    judged = apply_log(judged, request, plan.notes)
     if not session.has_window:
         ninfo = session.night_info
         plan.notes.append(str(ninfo.get("note") or ninfo.get("status") or "no dark window on this date"))
@@ -524,6 +575,8 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                                          candidates=js.table.assign(plan_status=STATUS_NO_DARK),
                                          schedule=empty_schedule(),
                                          summary="nothing to schedule: no dark window on this date"))
+        if (request.filters or {}).get("targets"):
+            plan.targets = target_report(request.filters["targets"], cat, plan.scopes)
         return plan
     window = session.window()
     assign = None
@@ -561,7 +614,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         if assign is not None:
             shared_out = j.index[~j.index.isin(assign.get(name, [])) & ~j.index.isin(chal_assign.get(name, []))]
         j = j.assign(plan_status=plan_status(j, sched, cut, request.limit, request.challenges, shared_out))
-        sched = sched.reset_index(drop=True)
+        sched = flag_done(sched.reset_index(drop=True), j)
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
         when = "tonight" if not (request.start_local or request.end_local) else (
@@ -570,4 +623,6 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                                 request.challenges)
         plan.scopes.append(ScopePlan(name=name, telescope=dict(js.spec), candidates=j, schedule=sched,
                                      n_split=n_all, n_challenge=n_near, summary=summary))
+    if (request.filters or {}).get("targets"):
+        plan.targets = target_report(request.filters["targets"], cat, plan.scopes)
     return plan

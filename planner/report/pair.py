@@ -57,9 +57,15 @@ def render_report(rep: dict) -> str:
     last = rep["last_measure"]
     if last["year"] is not None:
         meas = f"{last['year']:.0f}"
+        ago = f"{_f(rep['years_since_measure'], '.0f')} yr ago"
         if last["rho_arcsec"] is not None:
             meas += f": {last['rho_arcsec']:.1f}\" at {_f(last['theta_deg'], '.0f')} deg"
-        lines.append(f"last measure {meas} ({_f(rep['years_since_measure'], '.0f')} yr ago)")
+            lines.append(f"last measure {meas} ({ago})")
+        else:
+            # an ORB6-only row: the year is the last observation the orbit was fitted to, not the
+            # last time anyone measured the pair
+            lines.append(f"orbit data  last observation used by the orbit: {meas} ({ago}; the pair may have "
+                         "been measured since)")
     lines.append(f"note        {rep['reason']}")
     if rep["ra_date_deg"] is not None:
         lines.append(f"position    RA {ra_text(rep['ra_date_deg'])} = {rep['ra_date_deg']:.4f} deg,"
@@ -101,6 +107,8 @@ def render_tonight(rep: dict) -> str:
     if t.get("name") and t["name"] != f"{t.get('aperture_mm', 0):g} mm":
         tel = f"{t['name']} ({tel})"
     lines = ["", f"tonight     evening of {rep['date']} with {tel}, seeing {rep['seeing_origin']}"]
+    if rep.get("calibration"):
+        lines.append(f"chance      {rep['calibration']}")
     if rep["dark_start_utc"]:
         lines.append(f"dark window {_local(rep['dark_start_utc'], tz)} to {_local(rep['dark_end_utc'], tz)}"
                      f" ({rep['darkness']}, {tz})")
@@ -242,6 +250,21 @@ def render_text(report) -> str:
     text = render_report(report.geometry)
     if report.tonight is not None:
         text += render_tonight(report.tonight)
+    text += render_attempts(getattr(report, "attempts", None) or [])
     if report.table is not None:
         text += "\n" + render_table(report.table)
     return text
+
+
+def render_attempts(rows: list[dict]) -> str:
+    """The latest attempts at the pair in the observation log (docs/log.md), newest first."""
+    if not rows:
+        return ""
+    lines = [""]
+    for k, e in enumerate(rows):
+        head = "your log    " if k == 0 else " " * 12
+        scope = e.get("scope") or f"{e['aperture_mm']:g} mm"
+        margin = "-" if e.get("margin") is None else format(e["margin"], ".2f")
+        note = f" ({e['note']})" if e.get("note") else ""
+        lines.append(f"{head}{_local(e['when_utc'], e['tz'])}: {e['result']} with {scope}, margin {margin}{note}")
+    return "\n".join(lines) + "\n"
