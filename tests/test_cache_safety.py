@@ -176,9 +176,10 @@ def test_whole_plan_runs_when_the_cache_folder_cannot_be_made(tmp_path, monkeypa
     # issue 13 item 8: every cache (catalogue, Earth orientation, separability tables) is optional
     import planner.sky._astrometry as astrometry
 
-    blocker = tmp_path / "not-a-folder"
-    blocker.write_text("x")
-    monkeypatch.setenv("SPLITPLAN_HOME", str(blocker / "home"))
+    home = tmp_path / "home"
+    home.mkdir()
+    (home / "cache").write_text("x")  # the cache folder's place is taken by a file
+    monkeypatch.setenv("SPLITPLAN_HOME", str(home))
     monkeypatch.setattr(astrometry, "_eop", None)
     code, out, err = cli("night", "--lat", "52.1873", "--lon", "-2.4127", "--tz", "Europe/London",
                          "--date", "2026-12-05", "--aperture", "102", "--limit", "2")
