@@ -203,8 +203,11 @@ def render_report(rep: dict) -> str:
         lines.append(f"separation  unknown ({rep['reason']})")
     else:
         lines.append(f"separation  {rep['rho_arcsec']:.3f}\"  +/- {_f(rep['rho_unc_arcsec'], '.3f')}\"")
-        lines.append(f"pos. angle  {rep['theta_deg']:.1f} deg  +/- {_f(rep['theta_unc_deg'], '.1f')} deg"
-                     "  (north through east)")
+        if rep["theta_deg"] is None:
+            lines.append("pos. angle  not catalogued")
+        else:
+            lines.append(f"pos. angle  {rep['theta_deg']:.1f} deg  +/- {_f(rep['theta_unc_deg'], '.1f')} deg"
+                         "  (north through east)")
     method = _METHOD_TEXT.get(rep["method"], rep["method"])
     if rep.get("orbit"):
         o = rep["orbit"]
@@ -307,7 +310,7 @@ def plot_pair(catalog, label, epoch_yr: float, path, precession: str = "j2000") 
         ax.plot([f["rho_arcsec"] * np.sin(thf), rep["rho_arcsec"] * np.sin(thn)],
                 [f["rho_arcsec"] * np.cos(thf), rep["rho_arcsec"] * np.cos(thn)], "--", color="gray",
                 lw=1, label="straight-line estimate")
-    if rep["rho_arcsec"] is not None:
+    if rep["rho_arcsec"] is not None and rep["theta_deg"] is not None:
         th = np.radians(rep["theta_deg"])
         e, n = rep["rho_arcsec"] * np.sin(th), rep["rho_arcsec"] * np.cos(th)
         ax.plot(e, n, "o", color="crimson", ms=8,

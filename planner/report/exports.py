@@ -188,7 +188,7 @@ def table_lines(sched: pd.DataFrame) -> list[str]:
         if r.flag:
             note = f"[{r.flag}] " + note
         lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {fmt_num(r.rho_arcsec, '6.2f')}\" "
-                     f"{fmt_num(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
+                     f"{fmt_num(r.theta_deg, '4.0f', '   -')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
     return lines
