@@ -37,7 +37,12 @@ Chance of success: P = 1 / (1 + exp(-(b0 + b1 ln margin))) x
 1 / (1 + exp(-(mag_limit - m_faint) / s_m)) with b0 = 0, b1 = 14, s_m = 0.25 mag:
 50 % at margin 1, about 80 % at margin 1.1 and 20 % at 0.9.  These numbers are
 **not fitted**; they are placeholders to be calibrated from observers' logs
-(:data:`CHANCE_PARAMS`).
+(:data:`CHANCE_PARAMS`).  A personal calibration fitted to an observation log
+(:mod:`planner.plan.calibration`, ``splitplan log fit``) is passed as
+``chance_params`` with two more keys: ``limit_scale`` (the observer's 50 %
+point in units of the model limit; the limit, and so the margin and the
+verdict, are taken relative to it) and ``mag_offset`` (mag, shifts the
+visibility curve).
 
 Eyepiece advice (common practice, no source): the eye separates two points
 about 2-4 arcmin apart at the eyepiece; we use 3' (180"), so
@@ -115,7 +120,7 @@ def _chance(margin, mag_margin, params):
     with np.errstate(divide="ignore", over="ignore", invalid="ignore"):
         lm = np.log(np.where(margin > 0, margin, 1e-12))
         p_sep = 1.0 / (1.0 + np.exp(-(params["b0"] + params["b1"] * lm)))
-        p_vis = 1.0 / (1.0 + np.exp(-mag_margin / params["mag_scale"]))
+        p_vis = 1.0 / (1.0 + np.exp(-(mag_margin - params.get("mag_offset", 0.0)) / params["mag_scale"]))
     return p_sep * np.where(np.isnan(mag_margin), 1.0, p_vis)
 
 
@@ -190,7 +195,9 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     mag2_arg = m_faint if model == "peterson1954" else None
     limit = required_separation_arcsec(ap, dm, eps, see, xcalc, lam, criterion, model=model,
                                        dispersion_arcsec=disp, mag2=mag2_arg, **common)
-    limit = np.broadcast_to(limit, (n,)).astype(float)
+    # a personal calibration (planner.plan.calibration) moves the limit to the observer's 50 % point
+    scale = float(params.get("limit_scale", 1.0))
+    limit = np.broadcast_to(limit, (n,)).astype(float) * scale
     with np.errstate(invalid="ignore", divide="ignore"):
         margin = rho / limit
     # the perfect-air and zenith limits only matter to explain a failure: compute them
@@ -200,10 +207,10 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     need = ~(margin >= MARGIN_CHALLENGE)
     if need.any():
         m2n = None if mag2_arg is None else mag2_arg[need]
-        limit_best[need] = required_separation_arcsec(ap, dm[need], eps, 0.0, 1.0, lam, criterion, model=model,
-                                                      mag2=m2n, **common)
-        limit_zenith[need] = required_separation_arcsec(ap, dm[need], eps, see[need], 1.0, lam, criterion,
-                                                        model=model, mag2=m2n, **common)
+        limit_best[need] = scale * required_separation_arcsec(ap, dm[need], eps, 0.0, 1.0, lam, criterion,
+                                                              model=model, mag2=m2n, **common)
+        limit_zenith[need] = scale * required_separation_arcsec(ap, dm[need], eps, see[need], 1.0, lam,
+                                                                criterion, model=model, mag2=m2n, **common)
 
     # -- magnification ------------------------------------------------------
     lod = float(lod_arcsec(ap, lam))

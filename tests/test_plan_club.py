@@ -77,7 +77,9 @@ def test_each_pair_goes_to_one_scope_that_splits_it(club):
 def test_sharing_prefers_the_smallest_comfortable_scope():
     import pandas as pd
 
+    from planner.optics.telescope import Telescope
     from planner.plan.club import share
+    from planner.plan.night import JudgedScope
 
     # three pairs all comfortable for both scopes, then one only the big scope splits
     idx = pd.Index([10, 11, 12, 13])
@@ -88,12 +90,12 @@ def test_sharing_prefers_the_smallest_comfortable_scope():
 
     small = table(["split", "split", "split", "no"], [2.0, 2.0, 2.0, 0.5], [90, 80, 70, 0])
     big = table(["split", "split", "split", "split"], [4.0, 4.0, 4.0, 1.2], [95, 85, 75, 60])
-    m, assign = share([("small", None, {"aperture_mm": 80}, small), ("big", None, {"aperture_mm": 200}, big)],
-                      share_margin=1.5, slack=5)
+    scopes = [JudgedScope(Telescope(80, name="small"), {"aperture_mm": 80}, small),
+              JudgedScope(Telescope(200, name="big"), {"aperture_mm": 200}, big)]
+    m, assign = share(scopes, share_margin=1.5, slack=5)
     assert assign["small"] == [10, 11, 12] and assign["big"] == [13]
     # with no slack the lists are balanced: the second comfortable pair moves to the empty list
-    m, assign = share([("small", None, {"aperture_mm": 80}, small), ("big", None, {"aperture_mm": 200}, big)],
-                      share_margin=1.5, slack=0)
+    m, assign = share(scopes, share_margin=1.5, slack=0)
     assert len(assign["small"]) == 2 and len(assign["big"]) == 2
 
 

@@ -238,3 +238,20 @@ def test_bad_inputs_are_one_line_errors():
         req = NightRequest(site=dict(SITE), scopes=[{"aperture_mm": 102.0}], **{"date": DATE, **bad})
         with pytest.raises(InputError, match=words):
             plan_night(req)
+
+
+def test_the_request_is_not_modified_and_the_plan_carries_the_resolved_session():
+    # the plan resolves "tonight" into its own copy of the request; the caller's request keeps
+    # date=None (before the session object, prepare() wrote the date into the caller's request)
+    import copy
+
+    from planner.plan.night import plan_night
+    from planner.sky.site import Site
+
+    req = NightRequest(site=dict(SITE), scopes=[{"aperture_mm": 102.0}], seeing_arcsec=1.5, limit=3)
+    before = copy.deepcopy(req)
+    p = plan_night(req)
+    assert req == before and req.date is None
+    assert p.request.date is not None and p.night["local_date"] == p.request.date
+    assert isinstance(p.session.site, Site) and p.session.site.lat_deg == SITE["lat_deg"]
+    assert [t.name for t in p.session.telescopes] == ["102 mm"]

@@ -86,7 +86,7 @@ def test_feasibility_hook_can_veto_everything():
 def test_fast_positions_agree_with_the_full_path():
     # FastAltAz (apparent place once, linear hour angle) vs the sky engine's full ERFA path:
     # agreement to 0.01 deg over a night is ample for scheduling (common practice, no source)
-    from planner.plan.bridge import FastAltAz
+    from planner.sky.placement import FastAltAz
 
     ra, dec, _ = _targets(200)
     fast = FastAltAz(ra, dec, SITE, START + (END - START) // 2)

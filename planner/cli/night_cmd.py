@@ -215,7 +215,7 @@ def night(
     if save_plan is not None:
         from planner.config.planfile import write_plan_file
 
-        write_plan_file(save_plan, req.to_dict(), plan.version, plan.catalog_source)
+        write_plan_file(save_plan, plan.request.to_dict(), plan.version, plan.catalog_source)
         print(f"splitplan: saved the inputs to {save_plan} (rerun with --plan {save_plan})", file=sys.stderr)
     emit(plan, as_json, out)
 

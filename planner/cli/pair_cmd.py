@@ -353,7 +353,7 @@ def tonight_report(catalog, label, *, site=None, lat=None, lon=None, elevation=N
     resolved exactly as ``splitplan night`` resolves them."""
     from planner.cli.night_cmd import build_request
     from planner.errors import InputError
-    from planner.plan.night import resolve_seeing
+    from planner.plan.session import resolve_seeing
     from planner.plan.single import check_pair
 
     opt.check_darkness(darkness)

@@ -89,18 +89,19 @@ def _check_name(name: str) -> str:
 
 def validate(kind: str, fields: dict) -> dict:
     """Check a profile entry by building the real object from it; returns the cleaned dict."""
-    from planner.plan import bridge
+    from planner.optics.telescope import Telescope
+    from planner.sky.site import Site
 
     clean = _clean(kind, fields)
     if kind == "site":
         for req in ("lat_deg", "lon_deg", "tz"):
             if req not in clean:
                 raise InputError(f"a site needs {req}")
-        bridge.make_site(clean)
+        Site.from_mapping(clean)
     else:
         if "aperture_mm" not in clean:
             raise InputError("a telescope needs aperture_mm")
-        bridge.make_telescope(clean)
+        Telescope.from_mapping(clean)
     return clean
 
 

@@ -101,6 +101,19 @@ class Telescope:
             raise InputError(f"wavelength_nm = {lam:g} is not allowed; use a wavelength between 200 and 5000 nm")
         object.__setattr__(self, "wavelength_nm", lam)
 
+    @classmethod
+    def from_mapping(cls, d, name: str = "") -> "Telescope":
+        """Build a telescope from a profile, plan-file or command-line mapping.
+
+        Keys: ``aperture_mm`` (required), ``obstruction``, ``kind``, ``focal_mm``,
+        ``wavelength_nm`` and optionally ``name``; other keys (``note``) are
+        ignored.  ``name`` wins over ``d["name"]``."""
+        if d.get("aperture_mm") is None:
+            raise InputError("a telescope needs an aperture in mm (--aperture 102)")
+        kw = {"aperture_mm": d["aperture_mm"], "obstruction": d.get("obstruction"), "kind": d.get("kind"),
+              "focal_length_mm": d.get("focal_mm"), "wavelength_nm": d.get("wavelength_nm")}
+        return cls(name=name or d.get("name", ""), **{k: v for k, v in kw.items() if v is not None})
+
     # -- derived quantities -------------------------------------------------
     @property
     def focal_ratio(self) -> float | None:

@@ -17,8 +17,10 @@ import numpy as np
 import pandas as pd
 
 from planner.errors import InputError
-from planner.plan import bridge
+from planner.optics.telescope import APERTURE_MAX_MM, APERTURE_MIN_MM, Telescope
 from planner.plan.model import NightRequest
+from planner.plan.night import judge_at_best, prepare
+from planner.plan.session import Session, parse_date, site_of
 
 
 def _dates(date_from: str, date_to: str | None, nights: int) -> list[str]:
@@ -47,45 +49,33 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
     and ``pairs`` (DataFrame of every pair split by the largest aperture with
     the smallest aperture that splits it, ``first_aperture_mm``).
     """
-    from planner.plan.night import prepare, resolve_seeing
-
     aps = sorted({float(a) for a in apertures_mm})
     if not aps:
         raise InputError("give at least one aperture in mm, e.g. 60 80 102 127")
-    from planner.optics.telescope import APERTURE_MAX_MM, APERTURE_MIN_MM
-
     for a in aps:
         if not APERTURE_MIN_MM <= a <= APERTURE_MAX_MM:
             raise InputError(f"aperture {a:g} mm is outside {APERTURE_MIN_MM:g}-{APERTURE_MAX_MM:g} mm")
     if int(nights) < 1:
         raise InputError(f"--nights {nights} must be 1 or more")
-    if request.date is None:
-        from planner.plan.night import parse_date
-
-        request.date = parse_date(None, bridge.make_site(request.site, request.site_name))
-    dates = _dates(request.date, date_to, nights)
-    seeing, origin = resolve_seeing(request)
+    start = parse_date(request.date, site_of(request))
+    dates = _dates(start, date_to, nights)
     base_scope = dict(request.scopes[0]) if request.scopes else {}
     obstruction = float(base_scope.get("obstruction", 0.0))
+    tels = [Telescope.from_mapping({"aperture_mm": a, "obstruction": obstruction, "kind": base_scope.get("kind")},
+                                   f"{a:g} mm") for a in aps]
     split_any = None
     table = None
     for d in dates:
-        req = dataclasses.replace(request, date=d)
-        site, night, ninfo, cat, table, vis, epoch = prepare(req, catalog)
-        catalog = cat
-        up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
-        x = vis["airmass_best"].to_numpy(float)
-        sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
-        disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
-        cols = []
-        for a in aps:
-            tel = bridge.make_telescope({"aperture_mm": a, "obstruction": obstruction,
-                                         "kind": base_scope.get("kind")}, f"{a:g} mm")
-            v = bridge.judge(tel, table, seeing, x, sky_mag=sky, dispersion_arcsec=disp)
-            cols.append((v["verdict"].astype(str).to_numpy() == "split") & up)
+        session = Session.from_request(dataclasses.replace(request, date=d), need_scopes=False)
+        nt = prepare(session, catalog)
+        catalog, table = nt.catalog, nt.table
+        up = nt.up
+        cols = [(judge_at_best(tel, table, nt.vis, session.seeing_arcsec)["verdict"].astype(str).to_numpy()
+                 == "split") & up for tel in tels]
         m = np.stack(cols, axis=1) if cols else np.zeros((len(table), 0), bool)
         m = pd.DataFrame(m, index=table.index)
         split_any = m if split_any is None else split_any.reindex(split_any.index.union(m.index), fill_value=False) | m.reindex(split_any.index.union(m.index), fill_value=False)
+    seeing, origin = session.seeing_arcsec, session.seeing_origin
     mat = split_any.to_numpy(bool)
     counts = mat.sum(axis=0)
     names = table.reindex(split_any.index)

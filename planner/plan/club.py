@@ -31,20 +31,22 @@ import pandas as pd
 
 
 def share(judged: list, share_margin: float = 1.5, slack: int = 2):
-    """Matrix and assignment for ``judged`` = [(name, telescope, scope_dict, table), ...].
+    """Matrix and assignment for ``judged``: one :class:`planner.plan.night.JudgedScope`
+    per telescope (``name``, ``telescope``, ``table`` with ``verdict``, ``margin``,
+    ``score`` and ``up``), all tables indexed alike.
 
     Returns ``(matrix, assign)`` where ``matrix`` is a DataFrame indexed like
     the pair table with ``wds_id``, ``discoverer``, ``components``,
     ``best_score``, ``assigned`` and per scope ``<name>`` (verdict) and
     ``<name> margin``; ``assign`` maps scope name -> list of pair index labels.
     """
-    names = [j[0] for j in judged]
-    base = judged[0][3]
+    names = [j.name for j in judged]
+    base = judged[0].table
     up = base["up"].to_numpy(bool)
-    verdicts = np.stack([j[3]["verdict"].astype(str).to_numpy() for j in judged], axis=1)
-    margins = np.stack([j[3]["margin"].to_numpy(float) for j in judged], axis=1)
-    scores = np.stack([j[3]["score"].to_numpy(float) for j in judged], axis=1)
-    apert = np.array([float(j[2].get("aperture_mm", 0.0)) for j in judged])
+    verdicts = np.stack([j.table["verdict"].astype(str).to_numpy() for j in judged], axis=1)
+    margins = np.stack([j.table["margin"].to_numpy(float) for j in judged], axis=1)
+    scores = np.stack([j.table["score"].to_numpy(float) for j in judged], axis=1)
+    apert = np.array([j.telescope.aperture_mm for j in judged])
     splits = (verdicts == "split") & up[:, None]
     any_split = splits.any(axis=1)
     rows = np.flatnonzero(any_split)
@@ -83,11 +85,11 @@ def share(judged: list, share_margin: float = 1.5, slack: int = 2):
 
 def share_challenges(judged: list) -> dict:
     """Near misses that no scope splits, each given to the scope with the largest margin on it."""
-    names = [j[0] for j in judged]
-    base = judged[0][3]
+    names = [j.name for j in judged]
+    base = judged[0].table
     up = base["up"].to_numpy(bool)
-    verdicts = np.stack([j[3]["verdict"].astype(str).to_numpy() for j in judged], axis=1)
-    margins = np.stack([j[3]["margin"].to_numpy(float) for j in judged], axis=1)
+    verdicts = np.stack([j.table["verdict"].astype(str).to_numpy() for j in judged], axis=1)
+    margins = np.stack([j.table["margin"].to_numpy(float) for j in judged], axis=1)
     chal = (verdicts == "challenge") & up[:, None] & ~((verdicts == "split").any(axis=1))[:, None]
     pick = np.argmax(np.where(chal, np.nan_to_num(margins, nan=-1.0), -np.inf), axis=1)
     has = chal.any(axis=1)

@@ -87,6 +87,7 @@ class NightPlan:
     matrix: object = None            # club matrix DataFrame (pairs x scopes) or None
     cautions: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    session: object = None           # the resolved planner.plan.session.Session (site, telescopes, night)
 
     @property
     def schedule(self):

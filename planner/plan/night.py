@@ -20,14 +20,28 @@ the schedule's slots):
 
 from __future__ import annotations
 
-import datetime as _dt
+import sys
+from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
+from planner import __version__
+from planner.catalogs import read_target_list, restrict
+from planner.catalogs.catalog import Catalog, load_catalog
 from planner.errors import InputError
-from planner.plan import bridge
-from planner.plan.model import DARKNESS, SCHEDULE_COLUMNS, NightPlan, NightRequest, ScopePlan
+from planner.motion import pair_geometry
+from planner.motion.epochs import to_epoch_yr
+from planner.optics.telescope import Telescope
+from planner.plan import club
+from planner.plan.model import SCHEDULE_COLUMNS, NightPlan, NightRequest, ScopePlan
+from planner.plan.schedule import greedy_schedule
+from planner.plan.score import score_pairs
+from planner.plan.session import Session
+from planner.sky.atmosphere import airmass
+from planner.sky.night import sun_alt_deg, sun_sep_deg
+from planner.sky.placement import FastAltAz, alt_az_at, visibility
+from planner.verdict import judge
 
 #: at most this many best-ranked pairs enter the scheduler per section
 POOL_SIZE = 1500
@@ -42,105 +56,6 @@ CAUTIONS = (
     "At public or club sessions follow the local rules of the site and the organisers.",
     "Separations come from orbits or old measures; a pair marked 'linear' or 'last' may have moved.",
 )
-
-
-# -- inputs -----------------------------------------------------------------------
-
-def resolve_seeing(request: NightRequest) -> tuple[float, str]:
-    """Seeing FWHM (arcsec) and a text saying where it came from."""
-    from planner.config.seeing_scale import load_scale, steadiness_to_seeing
-
-    if request.seeing_arcsec is not None and request.steadiness is not None:
-        raise InputError("give either --seeing (arcsec) or --steadiness (1-10), not both")
-    if request.seeing_arcsec is not None:
-        s = float(request.seeing_arcsec)
-        if not 0.0 <= s <= 20.0:
-            raise InputError(f"seeing {s} arcsec is outside 0-20 (typical nights 1-3)")
-        return s, f"{s:g}\" FWHM as given"
-    if request.steadiness is not None:
-        table, origin = load_scale()
-        s = steadiness_to_seeing(request.steadiness, table)
-        src = "default table (an assumption)" if origin == "default" else origin
-        return s, f"steadiness {float(request.steadiness):g}/10 -> {s:.2f}\" via {src}"
-    return 2.0, "2\" FWHM (default; give --seeing or --steadiness)"
-
-
-def tonight(site) -> str:
-    """Local date of tonight's evening at the site (before noon: last night)."""
-    now = _dt.datetime.now(site.zone)
-    if now.hour < 12:
-        now = now - _dt.timedelta(days=1)
-    return now.date().isoformat()
-
-
-def parse_date(text: str | None, site) -> str:
-    if text is None:
-        return tonight(site)
-    try:
-        return _dt.date.fromisoformat(str(text)).isoformat()
-    except ValueError:
-        raise InputError(f"date {text!r} is not a valid YYYY-MM-DD date") from None
-
-
-def decimal_year(when_utc) -> float:
-    """Julian epoch (e.g. 2026.92) of a UTC instant."""
-    t = np.datetime64(when_utc, "ns")
-    days = (t - np.datetime64("2000-01-01T12:00:00", "ns")).astype("int64") / 86400e9
-    return 2000.0 + days / 365.25
-
-
-# -- the night --------------------------------------------------------------------
-
-def night_summary(night, site) -> dict:
-    """Flatten the sky engine's night object into plain values for reports."""
-    d: dict = {}
-    for key in ("dark_start_utc", "dark_end_utc", "sunset_utc", "sunrise_utc", "darkness",
-                "moon_illumination", "moon_rise_utc", "moon_set_utc", "moon_alt_max_deg",
-                "status", "note", "local_date", "sun_alt_limit_deg"):
-        if hasattr(night, key):
-            d[key] = getattr(night, key)
-    illum = getattr(night, "moon_illum", None)
-    if illum is not None and np.size(illum):
-        d["moon_illumination"] = float(np.nanmax(illum))
-        up = np.asarray(getattr(night, "moon_alt_deg", []), float) > 0
-        d["moon_up"] = "none" if not up.any() else ("all" if up.all() else "part")
-    if getattr(night, "has_dark", True) is False:
-        d["dark_start_utc"] = None
-        d["dark_end_utc"] = None
-    d["tz"] = site.tz
-    return d
-
-
-def _has_window(ninfo: dict) -> bool:
-    a, b = ninfo.get("dark_start_utc"), ninfo.get("dark_end_utc")
-    return a is not None and b is not None and not pd.isna(a) and not pd.isna(b)
-
-
-def session_window(ninfo: dict, site, local_date: str, start_local, end_local):
-    """The dark window, cut to the observer's optional HH:MM start and end."""
-    a = np.datetime64(pd.Timestamp(ninfo["dark_start_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_start_utc"]).tzinfo else ninfo["dark_start_utc"], "ns")
-    b = np.datetime64(pd.Timestamp(ninfo["dark_end_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_end_utc"]).tzinfo else ninfo["dark_end_utc"], "ns")
-
-    def at(hhmm: str, default):
-        try:
-            h, m = (int(x) for x in str(hhmm).split(":"))
-            assert 0 <= h < 24 and 0 <= m < 60
-        except Exception:
-            raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock)") from None
-        day = _dt.date.fromisoformat(local_date)
-        if h < 12:  # after midnight: the next calendar day
-            day = day + _dt.timedelta(days=1)
-        local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
-        return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
-
-    if start_local:
-        a = max(a, at(start_local, a))
-    if end_local:
-        b = min(b, at(end_local, b))
-    if start_local and end_local and at(start_local, a) >= at(end_local, b):
-        raise InputError(f"--start {start_local} is not before --end {end_local} (evening times before "
-                         "midnight, morning times after)")
-    return a, b
 
 
 # -- filters ------------------------------------------------------------------------
@@ -202,15 +117,11 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
 
 def restrict_to_targets(table: pd.DataFrame, path, catalog=None) -> pd.DataFrame:
     """Keep the pairs named in a user's target list (CSV of WDS ids or designations)."""
-    from planner.catalogs import read_target_list, restrict
-
     if catalog is None:
         raise InputError("a target list needs the catalogue it refers to")
     sub = restrict(catalog, read_target_list(path))
     unmatched = sub.pairs.attrs.get("unmatched") or []
     if unmatched:
-        import sys
-
         names = ", ".join(repr(q) for q, _ in unmatched[:5])
         print(f"splitplan: note: {len(unmatched)} name(s) in {path} match no pair: {names}", file=sys.stderr)
     return table[table.index.isin(sub.pairs.index)]
@@ -218,14 +129,31 @@ def restrict_to_targets(table: pd.DataFrame, path, catalog=None) -> pd.DataFrame
 
 # -- judging and scoring ----------------------------------------------------------
 
-def judge_scope(tel, table: pd.DataFrame, vis: pd.DataFrame, seeing: float, min_alt: float) -> pd.DataFrame:
-    """Verdict at the best time and score for every row, for one telescope."""
-    from planner.plan.score import score_pairs
+def judge_rows(tel: Telescope, pairs: pd.DataFrame, seeing_arcsec: float, airmass_x, sky_mag=None,
+               dispersion_arcsec=None) -> pd.DataFrame:
+    """The verdict table (positional, 0..n-1) for ``pairs`` (``rho_arcsec``, ``mag1``, ``mag2``) with this scope.
 
+    ``airmass_x``: airmass per pair at the instant judged (NaN: not up)."""
+    kw = {}
+    if sky_mag is not None:
+        kw["sky_mag_arcsec2"] = np.asarray(sky_mag, float)
+    if dispersion_arcsec is not None:
+        kw["dispersion_arcsec"] = np.nan_to_num(np.asarray(dispersion_arcsec, float))
+    return judge(pairs["rho_arcsec"].to_numpy(float), pairs["mag1"].to_numpy(float),
+                 pairs["mag2"].to_numpy(float), np.asarray(airmass_x, float), tel, float(seeing_arcsec), **kw)
+
+
+def judge_at_best(tel: Telescope, table: pd.DataFrame, vis: pd.DataFrame, seeing: float) -> pd.DataFrame:
+    """The verdict table for ``table`` at each pair's best time (airmass, sky and dispersion from ``vis``)."""
     x = vis["airmass_best"].to_numpy(float)
     sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
     disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
-    v = bridge.judge(tel, table, seeing, x, sky_mag=sky, dispersion_arcsec=disp)
+    return judge_rows(tel, table, seeing, x, sky_mag=sky, dispersion_arcsec=disp)
+
+
+def judge_scope(tel: Telescope, table: pd.DataFrame, vis: pd.DataFrame, seeing: float, min_alt: float) -> pd.DataFrame:
+    """Verdict at the best time and score for every row, for one telescope."""
+    v = judge_at_best(tel, table, vis, seeing)
     v = v.reset_index(drop=True)
     v.index = table.index
     out = pd.concat([table, vis.drop(columns=[c for c in vis.columns if c in table.columns]), v], axis=1)
@@ -237,7 +165,7 @@ def judge_scope(tel, table: pd.DataFrame, vis: pd.DataFrame, seeing: float, min_
 REJUDGE_AIRMASS = np.geomspace(1.0, 10.0, 25)
 
 
-def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float, min_alt: float):
+def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float):
     """Feasibility at a slot: still split at the slot's airmass.
 
     Every candidate is judged once, in one vectorised call, at the airmasses of
@@ -250,13 +178,13 @@ def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float, min_alt: float):
     n, k = len(cand), len(REJUDGE_AIRMASS)
     small = cand[["rho_arcsec", "mag1", "mag2"]].reset_index(drop=True)  # what the verdict reads
     rep = small.iloc[np.repeat(np.arange(n), k)]
-    v = bridge.judge(tel, rep, seeing, np.tile(REJUDGE_AIRMASS, n))
+    v = judge_rows(tel, rep, seeing, np.tile(REJUDGE_AIRMASS, n))
     ok = (v["verdict"].to_numpy() == "split").reshape(n, k)
     n_ok = np.logical_and.accumulate(ok, axis=1).sum(axis=1)
     x_max = np.where(n_ok > 0, REJUDGE_AIRMASS[np.maximum(n_ok - 1, 0)], 0.0)
 
     def fn(idx, alt_deg, when):
-        return bridge.airmass(np.maximum(alt_deg, 1.0)) <= x_max[idx]
+        return np.asarray(airmass(np.maximum(alt_deg, 1.0)), float) <= x_max[idx]
 
     return fn
 
@@ -265,25 +193,36 @@ def empty_schedule() -> pd.DataFrame:
     return pd.DataFrame({c: pd.Series(dtype=object) for c in SCHEDULE_COLUMNS})
 
 
-def _schedule_section(tel, scope_name, cand, site, seeing, window, minutes, limit, section,
-                      busy=None, rejudge=True):
-    from planner.plan.schedule import greedy_schedule
+@dataclass(frozen=True)
+class Section:
+    """What one schedule section needs besides its candidates: the scope, the
+    window, how many slots, and what to call the rows."""
 
-    if len(cand) == 0 or limit <= 0:
+    tel: Telescope
+    window: tuple
+    limit: int
+    name: str                        # "plan" or "challenge"
+    busy: list | None = None
+    rejudge: bool = True
+
+
+def _schedule_section(session: Session, cand: pd.DataFrame, sec: Section) -> pd.DataFrame:
+    if len(cand) == 0 or sec.limit <= 0:
         return empty_schedule()
+    site, window = session.site, sec.window
     pool = cand.sort_values("score", ascending=False, kind="stable").head(POOL_SIZE)
-    altaz_fn = bridge.FastAltAz(pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), site,
-                                window[0] + (window[1] - window[0]) // 2)
-    feas = _rejudge_fn(tel, pool, seeing, site.min_alt_deg) if rejudge else None
+    altaz_fn = FastAltAz(pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), site,
+                         window[0] + (window[1] - window[0]) // 2)
+    feas = _rejudge_fn(sec.tel, pool, session.seeing_arcsec) if sec.rejudge else None
     sched = greedy_schedule(
         pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), pool["score"].to_numpy(float),
         _as_ns(pool["best_utc"]), _as_ns(pool["set_utc"]) if "set_utc" in pool else None,
-        window[0], window[1], minutes=minutes, altaz_fn=altaz_fn, min_alt_deg=site.min_alt_deg,
-        limit=limit, busy=busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
+        window[0], window[1], minutes=session.minutes, altaz_fn=altaz_fn, min_alt_deg=site.min_alt_deg,
+        limit=sec.limit, busy=sec.busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
     if len(sched) == 0:
         return empty_schedule()
     rows = pool.iloc[sched["cand"].to_numpy()].reset_index(drop=True)
-    return _finish_rows(tel, scope_name, rows, sched, site, seeing, section)
+    return _finish_rows(session, sec, rows, sched)
 
 
 def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
@@ -314,19 +253,20 @@ def _as_ns(s) -> np.ndarray:
     return v.to_numpy("datetime64[ns]")
 
 
-def _finish_rows(tel, scope_name, rows, sched, site, seeing, section) -> pd.DataFrame:
+def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.DataFrame) -> pd.DataFrame:
     """Schedule rows: position, airmass and verdict at each slot's start."""
+    site, tel = session.site, sec.tel
     t0 = sched["slot_start_utc"].to_numpy("datetime64[ns]")
-    alt, az = bridge.altaz(rows["ra_deg"].to_numpy(float), rows["dec_deg"].to_numpy(float), site, t0)
-    x = bridge.airmass(alt)
-    v = bridge.judge(tel, rows, seeing, x).reset_index(drop=True)
+    alt, az = alt_az_at(rows["ra_deg"].to_numpy(float), rows["dec_deg"].to_numpy(float), site, t0)
+    x = np.asarray(airmass(np.asarray(alt, float)), float)
+    v = judge_rows(tel, rows, session.seeing_arcsec, x).reset_index(drop=True)
     out = pd.DataFrame({
-        "section": section,
+        "section": sec.name,
         "slot": np.arange(1, len(rows) + 1),
         "slot_start_utc": t0,
         "slot_end_utc": sched["slot_end_utc"].to_numpy("datetime64[ns]"),
         "slot_local": [site.format_local(t, "%H:%M") for t in t0],
-        "scope": scope_name,
+        "scope": tel.name,
         "wds_id": rows["wds_id"].astype(str).to_numpy(),
         "discoverer": rows["discoverer"].astype(str).to_numpy(),
         "components": rows["components"].astype(str).to_numpy(),
@@ -341,7 +281,7 @@ def _finish_rows(tel, scope_name, rows, sched, site, seeing, section) -> pd.Data
         "dm": (rows["mag2"] - rows["mag1"]).to_numpy(float),
         "alt_deg": np.asarray(alt, float),
         "az_deg": np.asarray(az, float),
-        "airmass": np.asarray(x, float),
+        "airmass": x,
         "limit_arcsec": v["limit_arcsec"].to_numpy(float),
         "margin": v["margin"].to_numpy(float),
         "chance": v["chance"].to_numpy(float),
@@ -365,42 +305,40 @@ def sun_position(site, when_utc, ra_deg, dec_deg):
     when = np.asarray(when_utc, "datetime64[ns]")
     if when.size == 0:
         return np.array([]), np.array([])
-    return bridge.sun_alt_sep(site, when, ra_deg, dec_deg)
+    return (np.asarray(sun_alt_deg(site, when), float),
+            np.asarray(sun_sep_deg(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, when), float))
 
 
 # -- the whole plan ----------------------------------------------------------------
 
-def prepare(request: NightRequest, catalog=None):
-    """Everything before the telescopes: site, night, catalogue, visibility, geometry, filters.
+@dataclass(frozen=True)
+class NightTable:
+    """The pairs worth judging tonight: ``table`` (tonight's geometry, filtered),
+    ``vis`` (visibility, aligned with it), the ``catalog`` they came from and
+    the ``epoch`` (Besselian year) of the geometry."""
 
-    The returned table holds the pairs of every system that is up in the dark window for at
-    least one slot (``request.minutes``) -- or, with a target list, every listed pair -- with
-    tonight's geometry; ``vis`` is aligned with it."""
-    if request.darkness not in DARKNESS:
-        raise InputError(f"darkness {request.darkness!r} is not one of {', '.join(DARKNESS)}")
-    if not (0 < float(request.minutes) <= 240):
-        raise InputError(f"minutes per target {request.minutes!r} must be between 1 and 240")
-    if request.limit is not None and int(request.limit) < 1:
-        raise InputError(f"limit {request.limit!r} must be at least 1 (leave it out to fill the night)")
-    site_d = dict(request.site)
-    if request.min_alt_deg is not None:
-        site_d["min_alt_deg"] = request.min_alt_deg
-    site = bridge.make_site(site_d, request.site_name)
-    local_date = parse_date(request.date, site)
-    request.date = local_date
-    night = bridge.make_night(site, local_date, request.darkness)
-    ninfo = night_summary(night, site)
-    ninfo["local_date"] = local_date
-    cat = catalog if catalog is not None else bridge.load_catalog(request.catalog)
+    table: pd.DataFrame
+    vis: pd.DataFrame
+    catalog: object
+    epoch: float
+    minutes: float = 10.0
+
+    @property
+    def up(self) -> np.ndarray:
+        """Up in the dark for at least one slot (bool per row)."""
+        return self.vis["observable"].to_numpy(bool) & (self.vis["up_dark_min"].to_numpy(float) >= self.minutes)
+
+
+def prepare(session: Session, catalog=None) -> NightTable:
+    """Everything before the telescopes: catalogue, visibility, geometry, filters.
+
+    The table holds the pairs of every system that is up in the dark window for at
+    least one slot (``request.minutes``) -- or, with a target list, every listed pair --
+    with tonight's geometry; ``vis`` is aligned with it.  Nothing passed in is modified."""
+    request, site, night = session.request, session.site, session.night
+    cat = catalog if catalog is not None else load_catalog(request.catalog)
     pairs = cat.pairs
-    if _has_window(ninfo):
-        mid = np.datetime64(pd.Timestamp(ninfo["dark_start_utc"]).tz_localize(None) if pd.Timestamp(ninfo["dark_start_utc"]).tzinfo else ninfo["dark_start_utc"], "ns")
-    else:
-        mid = np.datetime64(f"{local_date}T23:59:00", "ns")
-    if hasattr(night, "middle_utc"):
-        mid = np.datetime64(night.middle_utc, "ns")
-    from planner.motion.epochs import to_epoch_yr
-
+    mid = np.datetime64(night.middle_utc, "ns")
     epoch = float(to_epoch_yr(mid))
     # Visibility first (it needs positions only), then the orbit geometry only for the systems
     # that are up in the dark long enough: a pair that never is cannot be scheduled, and the
@@ -409,74 +347,88 @@ def prepare(request: NightRequest, catalog=None):
     # every listed pair stays, so the plan can say which of them are not placed tonight.
     pos_ok = np.isfinite(pairs["ra_deg"].to_numpy(float)) & np.isfinite(pairs["dec_deg"].to_numpy(float))
     placed = pairs[pos_ok]
-    vis = bridge.visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, night)
+    vis = visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, night)
     vis = vis.reset_index(drop=True)
     vis.index = placed.index
-    up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= float(request.minutes))
+    up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= session.minutes)
     if not (request.filters or {}).get("targets"):
         wid = placed["wds_id"]
         placed = placed[wid.isin(wid[up]).to_numpy()]
-    from types import SimpleNamespace
-
-    geo = bridge.geometry(SimpleNamespace(pairs=placed, orbits=getattr(cat, "orbits", None)), mid)
+    sub = Catalog(pairs=placed, orbits=getattr(cat, "orbits", None), source=str(getattr(cat, "source", "")),
+                  retrieved=str(getattr(cat, "retrieved", "")))
+    geo = pair_geometry(sub, mid)
     keep_cols = [c for c in ("wds_id", "discoverer", "components", "ra_deg", "dec_deg", "mag1", "mag2",
                              "has_orbit", "note_flags") if c in pairs.columns]
     geo = geo.drop(columns=[c for c in geo.columns if c in keep_cols])
     table = pd.concat([placed[keep_cols], geo], axis=1)
     table = table[np.isfinite(table["rho_arcsec"].to_numpy(float))]
     table = apply_filters(table, request.filters, cat)
-    vis = vis.loc[table.index]
-    return site, night, ninfo, cat, table, vis, epoch
+    return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes)
 
 
-def plan_night(request: NightRequest, catalog=None) -> NightPlan:
-    """Build the night plan for every telescope of ``request``; see the module docstring."""
-    from planner import __version__
-    from planner.plan import club
+@dataclass(frozen=True)
+class JudgedScope:
+    """One telescope's candidates: every pair judged and scored, with ``up`` (bool column)."""
 
-    if not request.scopes:
-        raise InputError("no telescope given; use --aperture MM or --scope NAME")
-    seeing, seeing_origin = resolve_seeing(request)
-    site, night, ninfo, cat, table, vis, epoch = prepare(request, catalog)
+    telescope: Telescope
+    spec: dict                       # the scope as given (for reports and plan files)
+    table: pd.DataFrame
+
+    @property
+    def name(self) -> str:
+        return self.telescope.name
+
+
+def plan_night(request: NightRequest, catalog=None, session: Session | None = None) -> NightPlan:
+    """Build the night plan for every telescope of ``request``; see the module docstring.
+
+    ``session``: the resolved session when the caller has built it already
+    (:meth:`Session.from_request`); ``request`` is then ignored."""
+    if session is None:
+        if not request.scopes:
+            raise InputError("no telescope given; use --aperture MM or --scope NAME")
+        session = Session.from_request(request)
+    request = session.request
+    nt = prepare(session, catalog)
+    cat, table, vis = nt.catalog, nt.table, nt.vis
+    seeing = session.seeing_arcsec
     plan = NightPlan(request=request, version=__version__, catalog_source=str(getattr(cat, "source", "")),
-                     catalog_retrieved=str(getattr(cat, "retrieved", "")), night=ninfo,
-                     seeing_arcsec=seeing, seeing_origin=seeing_origin, scopes=[],
-                     cautions=list(CAUTIONS))
-    plan.notes.append(f"rho and theta computed for epoch {epoch:.3f}")
-    minutes = float(request.minutes)
-    up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= minutes)
+                     catalog_retrieved=str(getattr(cat, "retrieved", "")), night=dict(session.night_info),
+                     seeing_arcsec=seeing, seeing_origin=session.seeing_origin, scopes=[],
+                     cautions=list(CAUTIONS), session=session)
+    plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
+    up = nt.up
     judged = []
-    for i, sd in enumerate(request.scopes):
-        name = sd.get("name") or f"{sd.get('aperture_mm', 0):g} mm"
-        tel = bridge.make_telescope(sd, name)
-        j = judge_scope(tel, table, vis, seeing, site.min_alt_deg)
+    for tel, sd in zip(session.telescopes, request.scopes):
+        j = judge_scope(tel, table, vis, seeing, session.site.min_alt_deg)
         j["up"] = up
-        judged.append((name, tel, sd, j))
-    if not _has_window(ninfo):
+        judged.append(JudgedScope(telescope=tel, spec=sd, table=j))
+    if not session.has_window:
+        ninfo = session.night_info
         plan.notes.append(str(ninfo.get("note") or ninfo.get("status") or "no dark window on this date"))
-        for name, tel, sd, j in judged:
-            plan.scopes.append(ScopePlan(name=name, telescope=dict(sd), candidates=j,
+        for js in judged:
+            plan.scopes.append(ScopePlan(name=js.name, telescope=dict(js.spec), candidates=js.table,
                                          schedule=empty_schedule()))
         return plan
-    window = session_window(ninfo, site, request.date, request.start_local, request.end_local)
+    window = session.window()
     assign = None
     if len(judged) > 1:
         plan.matrix, assign = club.share(judged, share_margin=request.share_margin)
         chal_assign = club.share_challenges(judged)
-    for name, tel, sd, j in judged:
+    for js in judged:
+        j, name = js.table, js.name
         split = j[(j["verdict"] == "split") & j["up"]]
         chal = j[(j["verdict"] == "challenge") & j["up"]]
         if assign is not None:
             split = split[split.index.isin(assign.get(name, []))]
             chal = chal[chal.index.isin(chal_assign.get(name, []))]
-        main = _schedule_section(tel, name, split, site, seeing, window, minutes, _slot_limit(request, window),
-                                 "plan")
+        main = _schedule_section(session, split, Section(js.telescope, window, _slot_limit(request, window), "plan"))
         parts = [main]
         if request.challenges and len(chal):
             busy = list(zip(main["slot_start_utc"], main["slot_end_utc"])) if len(main) else []
-            extra = _schedule_section(tel, name, chal, site, seeing, window, minutes,
-                                      _slot_limit(request, window, challenge=True), "challenge", busy=busy,
-                                      rejudge=False)
+            extra = _schedule_section(session, chal, Section(js.telescope, window,
+                                                             _slot_limit(request, window, challenge=True),
+                                                             "challenge", busy=busy, rejudge=False))
             parts.append(extra)
         sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
             else empty_schedule()
@@ -487,6 +439,6 @@ def plan_night(request: NightRequest, catalog=None) -> NightPlan:
         else:
             summary = (f"splits {n_all} pairs tonight; {len(split)} of them are on its share of the club list"
                        + (f", plus {len(chal)} near misses" if request.challenges else ""))
-        plan.scopes.append(ScopePlan(name=name, telescope=dict(sd), candidates=j, schedule=sched,
+        plan.scopes.append(ScopePlan(name=name, telescope=dict(js.spec), candidates=j, schedule=sched,
                                      n_split=n_all, n_challenge=n_near, summary=summary))
     return plan

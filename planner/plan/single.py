@@ -17,13 +17,21 @@ on the evening asked about, so they are the nearest season, with real years.
 from __future__ import annotations
 
 import datetime as _dt
-from types import SimpleNamespace
-
 import numpy as np
 import pandas as pd
 
+from planner.catalogs import find_pair
+from planner.catalogs.catalog import Catalog, load_catalog
 from planner.errors import InputError
-from planner.plan import bridge
+from planner.motion import pair_geometry
+from planner.optics.telescope import Telescope
+from planner.plan.model import DARKNESS
+from planner.plan.night import CAUTIONS, judge_at_best
+from planner.plan.session import parse_date
+from planner.sky.night import night_for
+from planner.sky.placement import visibility
+from planner.sky.site import Site
+from planner.utc import iso_utc
 
 
 def sun_ra_deg(jd) -> np.ndarray:
@@ -78,17 +86,17 @@ def _run_around(mask: np.ndarray, k: int) -> tuple[int, int]:
     return a, b
 
 
-def _as_site(site):
+def _as_site(site) -> Site:
     if isinstance(site, dict):
-        return bridge.make_site(site)
+        return Site.from_mapping(site)
     return site
 
 
-def _as_scope(telescope):
+def _as_scope(telescope) -> Telescope:
     if isinstance(telescope, dict):
-        return bridge.make_telescope(telescope)
+        return Telescope.from_mapping(telescope)
     if isinstance(telescope, (int, float)):
-        return bridge.make_telescope({"aperture_mm": float(telescope)})
+        return Telescope(aperture_mm=float(telescope))
     return telescope
 
 
@@ -116,38 +124,30 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
     ``observable``), ``best_dates`` (see :func:`best_dates`) and ``cautions``.
     Times are ISO 8601 UTC text.
     """
-    from planner.plan.night import CAUTIONS, parse_date
-    from planner.report.exports import iso_utc
-
-    cat = bridge.load_catalog(catalog) if isinstance(catalog, str) else catalog
+    cat = load_catalog(catalog) if isinstance(catalog, str) else catalog
     pairs = cat.pairs
     if not isinstance(query_or_index, str) and query_or_index in pairs.index:
         idx = query_or_index
     else:
-        from planner.catalogs import find_pair
-
         idx = find_pair(cat, str(query_or_index))
     row = pairs.loc[[idx]]
     orbits = getattr(cat, "orbits", None)
     if orbits is not None and len(orbits):
         orbits = orbits[orbits["wds_id"] == row["wds_id"].iloc[0]]
-    small = SimpleNamespace(pairs=row, orbits=orbits, source=getattr(cat, "source", ""))
+    small = Catalog(pairs=row, orbits=orbits, source=str(getattr(cat, "source", "")),
+                    retrieved=str(getattr(cat, "retrieved", "")))
     site = _as_site(site)
     tel = _as_scope(telescope)
-    if darkness not in ("civil", "nautical", "astronomical"):
-        raise InputError(f"darkness {darkness!r} is not one of civil, nautical, astronomical")
+    if darkness not in DARKNESS:
+        raise InputError(f"darkness {darkness!r} is not one of {', '.join(DARKNESS)}")
     date = parse_date(None if local_date is None else str(local_date), site)
-    night = bridge.make_night(site, date, darkness)
-    geo = bridge.geometry(small, np.datetime64(night.middle_utc, "ns"))
+    night = night_for(site, date, darkness=darkness)
+    geo = pair_geometry(small, np.datetime64(night.middle_utc, "ns"))
     geo = geo.drop(columns=[c for c in geo.columns if c in row.columns])
     table = pd.concat([row, geo], axis=1)
     ra, dec = float(row["ra_deg"].iloc[0]), float(row["dec_deg"].iloc[0])
-    vis = bridge.visibility(np.array([ra]), np.array([dec]), site, night).reset_index(drop=True)
-    x = vis["airmass_best"].to_numpy(float)
-    sky = vis["sky_mag_arcsec2"].to_numpy(float) if "sky_mag_arcsec2" in vis else None
-    disp = vis["dispersion_arcsec"].to_numpy(float) if "dispersion_arcsec" in vis else None
-    v = bridge.judge(tel, table.reset_index(drop=True), float(seeing_arcsec), x, sky_mag=sky,
-                     dispersion_arcsec=disp).iloc[0]
+    vis = visibility(np.array([ra]), np.array([dec]), site, night).reset_index(drop=True)
+    v = judge_at_best(tel, table.reset_index(drop=True), vis, float(seeing_arcsec)).iloc[0]
     g = table.iloc[0]
     vis0 = vis.iloc[0]
     up_ok = bool(vis0["observable"]) and float(vis0["up_dark_min"]) >= minutes

@@ -23,6 +23,7 @@ import numpy as np
 import pandas as pd
 
 from planner.report.safe import html_text, pdf_text
+from planner.sky.placement import alt_az_at
 
 PALETTE = ["#1f6f8b", "#c0392b", "#7d5ba6", "#2e8b57", "#d68910", "#5d6d7e", "#a04000",
            "#117a65", "#884ea0", "#b03a2e", "#1a5276", "#7e5109"]
@@ -41,15 +42,6 @@ def _mpl():
     import matplotlib.pyplot as plt
 
     return plt
-
-
-def _site(plan):
-    from planner.plan import bridge
-
-    d = dict(plan.request.site)
-    if plan.request.min_alt_deg is not None:
-        d["min_alt_deg"] = plan.request.min_alt_deg
-    return bridge.make_site(d, plan.request.site_name)
 
 
 def _utc_ns(t):
@@ -72,11 +64,9 @@ def _label(r) -> str:
 
 def altitude_figure(plan, sched: pd.DataFrame | None = None):
     """Altitude versus local time of the scheduled pairs."""
-    from planner.plan import bridge
-
     plt = _mpl()
     sched = plan.schedule if sched is None else sched
-    site = _site(plan)
+    site = plan.session.site
     win = _window(plan)
     fig, ax = plt.subplots(figsize=(9.0, 4.2), dpi=110)
     if win is None or len(sched) == 0:
@@ -91,7 +81,7 @@ def altitude_figure(plan, sched: pd.DataFrame | None = None):
     loc = pd.DatetimeIndex(grid).tz_localize("UTC").tz_convert(tz).tz_localize(None)
     ra = sched["ra_deg"].to_numpy(float)
     dec = sched["dec_deg"].to_numpy(float)
-    alt, _ = bridge.altaz(ra[:, None], dec[:, None], site, grid[None, :])
+    alt, _ = alt_az_at(ra[:, None], dec[:, None], site, grid[None, :])
     alt = np.asarray(alt, float)
     wl = pd.DatetimeIndex(list(win)).tz_localize("UTC").tz_convert(tz).tz_localize(None)
     ax.axvspan(loc[0], wl[0], color="#f3e5c0", alpha=0.6, lw=0)
@@ -145,8 +135,7 @@ def sky_figure(plan, sched: pd.DataFrame | None = None):
                        marker="o" if row.section == "plan" else "D")
             ax.annotate(str(row.slot) if row.section == "plan" else f"c{row.slot}", (th[k], r[k]),
                         textcoords="offset points", xytext=(4, 4), fontsize=7, color=col)
-    ms = (plan.request.min_alt_deg if plan.request.min_alt_deg is not None
-          else plan.request.site.get("min_alt_deg", 20.0))
+    ms = plan.session.site.min_alt_deg
     circ = np.linspace(0, 2 * np.pi, 181)
     ax.plot(circ, np.full_like(circ, 90.0 - float(ms)), "--", color="#888", lw=0.8)
     ax.set_title("Where they are at their slot (zenith at the centre)", fontsize=9)

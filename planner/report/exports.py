@@ -14,6 +14,7 @@ import pandas as pd
 
 from planner.config.storage import atomic_write_bytes, atomic_write_text
 from planner.report.safe import csv_cell, terminal_text
+from planner.utc import iso_utc
 
 #: the fields every JSON object carries (the stable contract) -- all of them
 #: are columns of the schedule table.
@@ -22,15 +23,6 @@ CONTRACT_FIELDS = ("wds_id", "discoverer", "components", "slot_start_utc", "slot
                    "alt_deg", "airmass", "limit_arcsec", "margin", "chance")
 
 _TIME_COLS = ("slot_start_utc", "slot_end_utc", "best_utc")
-
-
-def iso_utc(t) -> str | None:
-    if t is None or (not isinstance(t, str) and pd.isna(t)):
-        return None
-    ts = pd.Timestamp(t)
-    if ts.tzinfo is not None:
-        ts = ts.tz_convert("UTC").tz_localize(None)
-    return ts.strftime("%Y-%m-%dT%H:%M:%SZ")
 
 
 def _clean(v):
@@ -161,9 +153,9 @@ def scope_label(sc: dict) -> str:
 def header_lines(plan) -> list[str]:
     r = plan.request
     n = plan.night
-    s = r.site
+    s = plan.session.site
     out = [f"Night plan {n.get('local_date', r.date)}  site {r.site_name or ''} "
-           f"({s.get('lat_deg', 0):.4f}, {s.get('lon_deg', 0):.4f}, {s.get('elevation_m', 0):g} m, {s.get('tz')})".replace("  site  (", "  site ("),
+           f"({s.lat_deg:.4f}, {s.lon_deg:.4f}, {s.elevation_m:g} m, {s.tz})".replace("  site  (", "  site ("),
            (f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} local"
             if n.get("dark_start_utc") is not None and not pd.isna(n.get("dark_start_utc"))
             else f"dark ({r.darkness}): none on this date")

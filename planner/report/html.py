@@ -128,13 +128,13 @@ def _matrix(plan) -> str:
 
 def _inputs(plan) -> str:
     r = plan.request
-    s = r.site
+    s = plan.session.site
     scopes = "; ".join(scope_label(sc) for sc in r.scopes)
     filt = ", ".join(f"{k}={v}" for k, v in (r.filters or {}).items()) or "none"
-    items = [("site", f"{r.site_name or 'unnamed'}: {_f(s.get('lat_deg'), '.4f')}°, {_f(s.get('lon_deg'), '.4f')}°, "
-                      f"{_f(s.get('elevation_m', 0), 'g')} m"),
-             ("time zone", s.get("tz", "")),
-             ("minimum altitude", f"{_f(r.min_alt_deg if r.min_alt_deg is not None else s.get('min_alt_deg', 20), 'g')}°"),
+    items = [("site", f"{r.site_name or 'unnamed'}: {_f(s.lat_deg, '.4f')}°, {_f(s.lon_deg, '.4f')}°, "
+                      f"{_f(s.elevation_m, 'g')} m"),
+             ("time zone", s.tz),
+             ("minimum altitude", f"{_f(s.min_alt_deg, 'g')}°"),
              ("telescopes", scopes), ("seeing", plan.seeing_origin),
              ("per target", f"{r.minutes:g} min, " + (f"at most {r.limit} pairs per scope" if r.limit
                                                        else "as many pairs as the night holds")),
@@ -162,7 +162,8 @@ def _night(plan) -> str:
 def render_html(plan) -> str:
     """The whole page as text."""
     sched = plan.schedule
-    site_label = plan.request.site_name or f"{plan.request.site.get('lat_deg', 0):.2f}, {plan.request.site.get('lon_deg', 0):.2f}"
+    site = plan.session.site
+    site_label = plan.request.site_name or f"{site.lat_deg:.2f}, {site.lon_deg:.2f}"
     alt_img = _png(charts.altitude_figure(plan, sched))
     sky_img = _png(charts.sky_figure(plan, sched))
     aps = {s.name: float(s.telescope.get("aperture_mm", 100.0)) for s in plan.scopes}

@@ -24,11 +24,11 @@ _f = fmt_num
 
 def _cover(plan, pdf, plt):
     fig = plt.figure(figsize=A4_LANDSCAPE)
-    r, n, s = plan.request, plan.night, plan.request.site
+    r, n, s = plan.request, plan.night, plan.session.site
     fig.text(0.04, 0.95, P(f"Double stars tonight - {r.site_name or 'site'} - evening of {n.get('local_date', '')}"),
              fontsize=16, weight="bold", color="#1f3b57")
     lines = [
-        f"Site: {s.get('lat_deg', 0):.4f}, {s.get('lon_deg', 0):.4f}, {s.get('elevation_m', 0):g} m, {s.get('tz', '')}",
+        f"Site: {s.lat_deg:.4f}, {s.lon_deg:.4f}, {s.elevation_m:g} m, {s.tz}",
         "Telescopes: " + "; ".join(scope_label(sc) for sc in r.scopes),
         f"Seeing: {plan.seeing_origin}",
         f"Darkness: {r.darkness}; dark window {local_hm(plan, n.get('dark_start_utc'))} - "

@@ -48,7 +48,7 @@ from planner.sky._astrometry import OMEGA_RAD_S, altaz_rad, astrom_at, to_utc64,
 from planner.sky.night import Night, sun_alt_deg
 from planner.sky.site import Site
 
-__all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place"]
+__all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place", "FastAltAz"]
 
 #: Output columns, in order (DEVELOPERS.md contract).
 VISIBILITY_COLUMNS = (
@@ -135,6 +135,32 @@ def _alt_az_fast(sd, cd, sphi, cphi, ha):
     alt = np.arcsin(salt)
     az = np.mod(np.arctan2(-cd * np.sin(ha), sd * cphi - cd * ch * sphi), TWO_PI)
     return alt, az
+
+
+class FastAltAz:
+    """Geometric alt/az (deg) of a fixed set of targets at any instant of one night, fast.
+
+    Steps 1 and 2 of the module docstring: the apparent (CIRS) place once, at
+    ``when_utc`` (:func:`apparent_place`), then the hour angle advancing
+    linearly with the Earth rotation angle.  Agrees with :func:`alt_az_at` to
+    about an arcsecond over a night (polar motion and diurnal aberration left
+    out), ample for scheduling; reported altitudes use :func:`alt_az_at`.
+    ``fast(idx, when_utc)`` returns ``(alt_deg, az_deg)`` of the targets ``idx``.
+    """
+
+    def __init__(self, ra_deg, dec_deg, site: Site, when_utc):
+        self.t0 = np.datetime64(when_utc, "ns")
+        ri, di, ast = apparent_place(np.asarray(ra_deg, float), np.asarray(dec_deg, float), site, self.t0)
+        self.ri = np.asarray(ri, float)
+        self.sd, self.cd = np.sin(di), np.cos(di)
+        self.eral = float(ast["eral"])
+        self.sphi, self.cphi = float(ast["sphi"]), float(ast["cphi"])
+
+    def __call__(self, idx, when_utc):
+        dt_s = (np.datetime64(when_utc, "ns") - self.t0).astype("int64") / 1e9
+        ha = self.eral + OMEGA_RAD_S * dt_s - self.ri[idx]
+        alt, az = _alt_az_fast(self.sd[idx], self.cd[idx], self.sphi, self.cphi, ha)
+        return np.degrees(alt), np.degrees(az)
 
 
 def _h0(sd, cd, sphi, cphi, h0_true_rad):

@@ -169,6 +169,18 @@ class Site:
         set_(self, "_zone", _zone_for(self.tz))
         set_(self, "name", str(self.name))
 
+    @classmethod
+    def from_mapping(cls, d, name: str = "") -> "Site":
+        """Build a site from a profile, plan-file or command-line mapping.
+
+        Keys: ``lat_deg``, ``lon_deg``, ``elevation_m``, ``tz``, ``min_alt_deg``,
+        ``horizon_file`` (path of a horizon profile) and optionally ``name``; other
+        keys (``note``) are ignored.  ``name`` wins over ``d["name"]``."""
+        kw = {k: d[k] for k in ("lat_deg", "lon_deg", "elevation_m", "tz", "min_alt_deg") if d.get(k) is not None}
+        if d.get("horizon_file"):
+            kw["horizon"] = d["horizon_file"]
+        return cls(name=name or d.get("name", ""), **kw)
+
     @property
     def zone(self):
         """The :class:`zoneinfo.ZoneInfo` of ``tz``."""

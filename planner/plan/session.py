@@ -1,0 +1,188 @@
+"""The resolved session: every input of a night plan as typed objects, built once.
+
+A :class:`~planner.plan.model.NightRequest` holds the inputs as the user gave
+them (plain values, what a plan file records).  :meth:`Session.from_request`
+checks them and builds, once, the objects every later step uses: the
+:class:`~planner.sky.site.Site`, one :class:`~planner.optics.telescope.Telescope`
+per scope, the local date, the sky engine's night, the seeing.  The night
+plan, the aperture comparison and the reports receive the session and never
+rebuild any of these.  The request is never modified; ``session.request`` is a
+copy with the resolved date filled in (so a saved plan reruns the same night).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+
+import numpy as np
+import pandas as pd
+
+from planner.config.seeing_scale import load_scale, steadiness_to_seeing
+from planner.errors import InputError
+from planner.optics.telescope import Telescope
+from planner.plan.model import DARKNESS, NightRequest
+from planner.sky.night import Night, night_for
+from planner.sky.site import Site
+
+
+@dataclasses.dataclass(frozen=True)
+class Session:
+    """One night's inputs, resolved.  Build with :meth:`from_request`."""
+
+    request: NightRequest            # the inputs, with ``date`` resolved to the local date
+    site: Site
+    telescopes: tuple                # of Telescope, each with its display name
+    night: Night
+    night_info: dict                 # plain values for reports (see :func:`night_summary`)
+    seeing_arcsec: float
+    seeing_origin: str
+
+    @property
+    def local_date(self) -> str:
+        return self.request.date
+
+    @property
+    def minutes(self) -> float:
+        return float(self.request.minutes)
+
+    @property
+    def has_window(self) -> bool:
+        """True when the night has a dark window."""
+        a, b = self.night_info.get("dark_start_utc"), self.night_info.get("dark_end_utc")
+        return a is not None and b is not None and not pd.isna(a) and not pd.isna(b)
+
+    @classmethod
+    def from_request(cls, request: NightRequest, need_scopes: bool = True) -> "Session":
+        """Check ``request`` and build the session (the request itself is left as it is)."""
+        if request.darkness not in DARKNESS:
+            raise InputError(f"darkness {request.darkness!r} is not one of {', '.join(DARKNESS)}")
+        if not (0 < float(request.minutes) <= 240):
+            raise InputError(f"minutes per target {request.minutes!r} must be between 1 and 240")
+        if request.limit is not None and int(request.limit) < 1:
+            raise InputError(f"limit {request.limit!r} must be at least 1 (leave it out to fill the night)")
+        if need_scopes and not request.scopes:
+            raise InputError("no telescope given; use --aperture MM or --scope NAME")
+        seeing, seeing_origin = resolve_seeing(request)
+        site = site_of(request)
+        local_date = parse_date(request.date, site)
+        night = night_for(site, local_date, darkness=request.darkness)
+        info = night_summary(night, site)
+        info["local_date"] = local_date
+        telescopes = tuple(Telescope.from_mapping(sd, scope_name(sd)) for sd in request.scopes)
+        return cls(request=dataclasses.replace(request, date=local_date), site=site, telescopes=telescopes,
+                   night=night, night_info=info, seeing_arcsec=seeing, seeing_origin=seeing_origin)
+
+    def window(self):
+        """The dark window (two UTC ``datetime64[ns]``), cut to the optional HH:MM start and end."""
+        r = self.request
+        return session_window(self.night_info, self.site, r.date, r.start_local, r.end_local)
+
+
+def site_of(request: NightRequest) -> Site:
+    """The request's site, with its ``min_alt_deg`` override applied."""
+    d = dict(request.site)
+    if request.min_alt_deg is not None:
+        d["min_alt_deg"] = request.min_alt_deg
+    return Site.from_mapping(d, request.site_name)
+
+
+def scope_name(sd: dict) -> str:
+    """A scope's display name: its own, else its aperture ("102 mm")."""
+    if sd.get("name"):
+        return str(sd["name"])
+    try:
+        return f"{float(sd.get('aperture_mm')):g} mm"
+    except (TypeError, ValueError):
+        return ""
+
+
+def resolve_seeing(request: NightRequest):
+    """Seeing FWHM (arcsec) and a text saying where it came from."""
+    if request.seeing_arcsec is not None and request.steadiness is not None:
+        raise InputError("give either --seeing (arcsec) or --steadiness (1-10), not both")
+    if request.seeing_arcsec is not None:
+        s = float(request.seeing_arcsec)
+        if not 0.0 <= s <= 20.0:
+            raise InputError(f"seeing {s} arcsec is outside 0-20 (typical nights 1-3)")
+        return s, f"{s:g}\" FWHM as given"
+    if request.steadiness is not None:
+        table, origin = load_scale()
+        s = steadiness_to_seeing(request.steadiness, table)
+        src = "default table (an assumption)" if origin == "default" else origin
+        return s, f"steadiness {float(request.steadiness):g}/10 -> {s:.2f}\" via {src}"
+    return 2.0, "2\" FWHM (default; give --seeing or --steadiness)"
+
+
+def tonight(site: Site) -> str:
+    """Local date of tonight's evening at the site (before noon: last night)."""
+    now = _dt.datetime.now(site.zone)
+    if now.hour < 12:
+        now = now - _dt.timedelta(days=1)
+    return now.date().isoformat()
+
+
+def parse_date(text, site: Site) -> str:
+    """The evening's local date as ISO text (None: tonight at the site)."""
+    if text is None:
+        return tonight(site)
+    try:
+        return _dt.date.fromisoformat(str(text)).isoformat()
+    except ValueError:
+        raise InputError(f"date {text!r} is not a valid YYYY-MM-DD date") from None
+
+
+def night_summary(night: Night, site: Site) -> dict:
+    """The sky engine's night as plain values for reports."""
+    d: dict = {}
+    for key in ("dark_start_utc", "dark_end_utc", "sunset_utc", "sunrise_utc", "darkness",
+                "moon_illumination", "moon_rise_utc", "moon_set_utc", "moon_alt_max_deg",
+                "status", "note", "local_date", "sun_alt_limit_deg"):
+        if hasattr(night, key):
+            d[key] = getattr(night, key)
+    illum = getattr(night, "moon_illum", None)
+    if illum is not None and np.size(illum):
+        d["moon_illumination"] = float(np.nanmax(illum))
+        up = np.asarray(getattr(night, "moon_alt_deg", []), float) > 0
+        d["moon_up"] = "none" if not up.any() else ("all" if up.all() else "part")
+    if getattr(night, "has_dark", True) is False:
+        d["dark_start_utc"] = None
+        d["dark_end_utc"] = None
+    d["tz"] = site.tz
+    return d
+
+
+def _ns(t) -> np.datetime64:
+    ts = pd.Timestamp(t)
+    if ts.tzinfo is not None:
+        ts = ts.tz_convert("UTC").tz_localize(None)
+    return np.datetime64(ts.to_datetime64(), "ns")
+
+
+def session_window(ninfo: dict, site: Site, local_date: str, start_local, end_local):
+    """The dark window, cut to the observer's optional HH:MM start and end."""
+    a = _ns(ninfo["dark_start_utc"])
+    b = _ns(ninfo["dark_end_utc"])
+
+    def at(hhmm: str):
+        try:
+            h, m = (int(x) for x in str(hhmm).split(":"))
+            ok = 0 <= h < 24 and 0 <= m < 60
+        except ValueError:
+            ok = False
+        if not ok:
+            raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock)")
+        day = _dt.date.fromisoformat(local_date)
+        if h < 12:  # after midnight: the next calendar day
+            day = day + _dt.timedelta(days=1)
+        local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
+        return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
+
+    if start_local:
+        a = max(a, at(start_local))
+    if end_local:
+        b = min(b, at(end_local))
+    if start_local and end_local and at(start_local) >= at(end_local):
+        raise InputError(f"--start {start_local} is not before --end {end_local} (evening times before "
+                         "midnight, morning times after)")
+    return a, b
