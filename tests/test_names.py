@@ -269,7 +269,7 @@ def test_bsc5_stars_with_an_orb6_hd_resolve_by_bayer_and_flamsteed(sample):
 def test_bright_pairs_in_the_bundled_default(sample):
     p = sample.pairs
     b = p[p["source"] == "bsc5"]
-    assert len(b) == 881
+    assert len(b) == 879
     assert (b["year_last"] == 1991).all()
     # Albireo AB from the two J2000 positions (HR 7417, 7418): 33.2", 53 deg; BSC5's own
     # multiple-star field gives 34.7"; positions to 0.1 s / 1" -> about +/-1.8" (docs/names.md)
@@ -342,3 +342,9 @@ def test_index_position_tolerance_is_stated():
 
     assert nm.POSITION_TOLERANCE_ARCSEC == 10.0 and nm.COARSE_TOLERANCE_ARCSEC == 60.0
     assert "10" in (Path(nm.__file__).resolve().parents[2] / "docs" / "names.md").read_text(encoding="utf-8")
+
+
+def test_one_row_per_wds_id_and_components(sample):
+    # two BSC5 systems describing one pair (HR 5999 / HR 6000 at 44.1") gave two identical keys before
+    key = sample.pairs["wds_id"] + "|" + sample.pairs["components"]
+    assert not key.duplicated().any()

@@ -333,6 +333,9 @@ def bsc5_pairs(stars: pd.DataFrame) -> pd.DataFrame:
     miss = out["wds_id"] == ""
     out.loc[miss, "wds_id"] = wds_id_from_position(out.loc[miss, "ra_deg"], out.loc[miss, "dec_deg"])
     out.loc[miss, "wds_join"] = "position"
+    # the same pair described by two systems' entries (e.g. HR 5999 and HR 6000 each giving
+    # the other at 44.1"): one row per WDS id and component label
+    out = out.drop_duplicates(["wds_id", "components"]).reset_index(drop=True)
     return out
 
 
