@@ -33,7 +33,7 @@ from planner.catalogs.wds import parse_wds_lines
 
 BATCH = 200
 EXAMPLES = 60  # 60 x ~200 lines > 10,000 lines per parser per run
-FUZZ = settings(max_examples=EXAMPLES, deadline=None, derandomize=False,
+FUZZ = settings(max_examples=EXAMPLES, deadline=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 
 WDS_ROWS = [ln.encode()[:130] for ln in reference_file("wds_rows_found.txt").read_text().splitlines()
@@ -214,4 +214,9 @@ def test_fuzz_whole_files(tmp_path_factory, content, kind):
     except PlannerError as exc:
         assert "\n" not in str(exc)
     else:
-        assert len(df) >= 0
+        # a reader that returns without error has read at least one row (an empty result
+        # raises CatalogError, see read_wds/read_orb6), and every row points at a real line
+        assert len(df) > 0
+        if kind != "any":
+            n_lines = len(content.replace(b"\r\n", b"\n").replace(b"\r", b"\n").split(b"\n"))
+            assert df["line_no"].between(1, n_lines).all()

@@ -24,7 +24,7 @@ from planner.catalogs import load_catalog, vizier
 from planner.catalogs.orb6 import read_orb6
 from planner.catalogs.sample import sample_paths
 from planner.catalogs.wds import read_wds
-from planner.errors import NetworkError
+from planner.errors import InputError, NetworkError
 
 WDS_VOT = DATA / "vizier_wds_reply.vot"
 ORB6_VOT = DATA / "vizier_orb6_reply.vot"
@@ -217,8 +217,9 @@ def test_import_local_files_into_snapshot(tmp_path):
     # a file that does not parse is refused and the snapshot stays
     bad = tmp_path / "bad.txt"
     bad.write_text("nothing useful here\n")
-    with pytest.raises(Exception):
+    with pytest.raises(InputError, match="is neither a WDS summary nor an ORB6 orbits text file") as exc:
         vizier.import_files(bad)
+    assert "\n" not in str(exc.value)
     assert vizier.current_snapshot()["source"] == meta["source"]
     assert json.loads((vizier.snapshot_root() / "current.json").read_text())["rows"]["orbits"] == 2096
 

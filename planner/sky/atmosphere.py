@@ -315,16 +315,33 @@ def moon_sky_nl(sep_deg, moon_alt_deg, target_alt_deg, phase_angle_deg, k=0.2):
     return np.where(_asarray(moon_alt_deg) > 0, b, 0.0)
 
 
-def twilight_sky_mag(sun_alt_deg):
-    """Zenith twilight sky brightness (V mag/arcsec^2) from the Sun's altitude.
+#: Patat, Ugolnikov & Postylyakov 2006, A&A 455, 385, Table 4, V band: zenith twilight
+#: sky m = a0 + a1 (zeta - 95) + a2 (zeta - 95)^2 mag/arcsec^2, zeta = Sun's zenith
+#: distance in degrees, fitted over 95-105 deg at ESO-Paranal (night sky included).
+TWILIGHT_V_FIT = (11.84, 1.518, -0.057)
 
-    APPROXIMATION, from memory: a straight line in magnitude through about
-    11.5 at Sun altitude -6 deg, 16.5 at -12 deg and 21.5 at -18 deg (5 mag
-    per 6 deg), roughly the run of published zenith twilight photometry
-    (e.g. Patat et al. 2006, A&A 455, 385 -- from memory, not checked).
-    Extrapolated below -18 deg so that the twilight term fades smoothly;
-    capped at 11.5 above -6 deg (the sky engine never plans in civil
-    twilight).  Good to perhaps a magnitude; use only to rank and to warn.
+
+def twilight_sky_mag(sun_alt_deg):
+    """Zenith twilight sky brightness (V mag/arcsec^2) added by the Sun, from its altitude.
+
+    Patat, Ugolnikov & Postylyakov (2006, A&A 455, 385) measured the zenith twilight
+    sky at ESO-Paranal and fitted m = 11.84 + 1.518 d - 0.057 d^2 (V band, d = zeta - 95,
+    zeta = Sun's zenith distance, 95-105 deg): 13.30 with the Sun 6 deg down, 19.67 at
+    12 deg.  Their fit includes the night sky and levels off at its maximum (21.95, Sun
+    18.3 deg down); the term returned here is the *excess* over that level, the
+    scattered sunlight alone, so that the caller can add it to its own night sky: it
+    fades to nothing (returns inf) at 18.3 deg, the end of astronomical twilight.  Above
+    5 deg down the fit's slope at 95 deg is continued (the planner never observes
+    there).  Paranal (2600 m) is about 30 % darker in twilight than a low site (same
+    paper), so the term is a little optimistic for sea-level sites.
     """
-    h = np.maximum(_asarray(sun_alt_deg), -40.0)
-    return 11.5 + (5.0 / 6.0) * (-6.0 - np.minimum(h, -6.0))
+    a0, a1, a2 = TWILIGHT_V_FIT
+    zeta = 90.0 - _asarray(sun_alt_deg)
+    d_top = -a1 / (2.0 * a2)                        # the fit's maximum (night level)
+    d = np.minimum(zeta - 95.0, d_top)
+    m = np.where(d >= 0.0, a0 + a1 * d + a2 * d * d, a0 + a1 * d)
+    m_night = a0 + a1 * d_top + a2 * d_top * d_top
+    with np.errstate(divide="ignore", invalid="ignore"):
+        excess = 10.0 ** (-0.4 * m) - 10.0 ** (-0.4 * m_night)
+        return np.where(excess > 0.0, -2.5 * np.log10(np.where(excess > 0, excess, 1.0)),
+                        np.inf)
