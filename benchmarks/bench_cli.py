@@ -246,7 +246,7 @@ def main() -> None:
         print(f"| `splitplan night ({a.pairs:,} pairs)` first run, cold parse + cache write | {cold:.2f} s | | | "
               f"{cold_rss:.0f} MB | | |")
         print()
-        for label, args in (("import planner.cli (what --help pays)", ["-c", "import planner.cli; planner.cli._register()"]),
+        for label, args in (("import planner.cli (what --help pays)", ["-c", "import planner.cli; planner.cli.command_tree()"]),
                             ("splitplan pair STF2272AB", ["-m", "planner", "pair", "STF2272AB"]),
                             ("splitplan night (sample)", ["-m", "planner", "night", *DEMO])):
             total, heavy, top = import_profile(args, env)

@@ -39,7 +39,7 @@ Chance of success: P = 1 / (1 + exp(-(b0 + b1 ln margin))) x
 **not fitted**; they are placeholders to be calibrated from observers' logs
 (:data:`CHANCE_PARAMS`).  A personal calibration fitted to an observation log
 (:mod:`planner.plan.calibration`, ``splitplan log fit``) is passed as
-``chance_params`` with two more keys: ``limit_scale`` (the observer's 50 %
+``chance_params`` (or carried by the telescope, ``Telescope.chance_params``) with two more keys: ``limit_scale`` (the observer's 50 %
 point in units of the model limit; the limit, and so the margin and the
 verdict, are taken relative to it) and ``mag_offset`` (mag, shifts the
 visibility curve).
@@ -157,7 +157,9 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
         telescope = Telescope(aperture_mm=telescope)
     criterion = check_criterion(criterion)
     lam = telescope.wavelength_nm if wavelength_nm is None else float(_values(wavelength_nm, "nm"))
-    params = dict(CHANCE_PARAMS if chance_params is None else chance_params)
+    if chance_params is None:
+        chance_params = {**CHANCE_PARAMS, **dict(telescope.chance_params)}
+    params = dict(chance_params)
     index = None
     for x in (rho_arcsec, mag1, mag2, airmass, seeing_arcsec, sky_mag_arcsec2, dispersion_arcsec):
         if isinstance(x, pd.Series):

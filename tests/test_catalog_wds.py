@@ -170,37 +170,44 @@ def test_bad_files(tmp_path):
 
 
 def test_cached_reload_is_identical(tmp_path):
-    # The parse cache returns the same table, and a changed file is parsed again.
-    from planner.catalogs.cache import cached_read
+    # The catalogue cache returns the same tables, and a changed file is parsed again.
+    import pandas as pd
+
+    from planner.catalogs.catalog import load_files
 
     p = tmp_path / "w.txt"
     p.write_text("\n".join([ROW1, ROW2]) + "\n")
-    a = cached_read(p, "wds", read_wds)
-    b = cached_read(p, "wds", read_wds)
-    assert a.equals(b) and b.attrs["problems"] == []
+    a = load_files(p)
+    b = load_files(p)
+    pd.testing.assert_frame_equal(a.pairs, b.pairs)
+    pd.testing.assert_frame_equal(a.orbits, b.orbits)
+    assert b.problems == [] and b.source == a.source
     p.write_text("\n".join([ROW1, ROW2, ROW3, "junk"]) + "\n")
-    c = cached_read(p, "wds", read_wds)
-    assert len(c) == 3 and c.attrs["problems"] == [(4, "line too short to hold the WDS id and discoverer (17 columns)")]
+    c = load_files(p)
+    assert len(c.pairs) == 3
+    assert c.problems == [(str(p), 4, "line too short to hold the WDS id and discoverer (17 columns)")]
 
 
 def test_corrupt_cache_quarantined(tmp_path, capsys):
     from planner.catalogs import cache
+    from planner.catalogs.catalog import load_files
     from planner.config.storage import user_dir
 
     p = tmp_path / "w.txt"
     p.write_text(ROW1 + "\n")
-    cache.cached_read(p, "wds", read_wds)
-    entry = next((user_dir("cache") / "catalogs").glob("wds-*.pkl"))
+    load_files(p)
+    entry = next((user_dir("cache") / "catalogs").glob("files-*" + cache.SUFFIX))
     raw = bytearray(entry.read_bytes())
-    raw[-10] ^= 0xFF  # flip a byte of the payload: the CRC no longer matches
+    raw[-10] ^= 0xFF  # flip a byte of the payload: the checksum no longer matches
     entry.write_bytes(bytes(raw))
     capsys.readouterr()
-    df = cache.cached_read(p, "wds", read_wds)
+    cat = load_files(p)
     err = capsys.readouterr().err
-    assert len(df) == 1
+    assert len(cat.pairs) == 1
     assert err.count("\n") == 1 and "damaged" in err and "rebuilding" in err
-    assert list((user_dir("cache") / "catalogs").glob("wds-*.pkl.corrupt-*"))
-    assert cache.load_cached(p, "wds") is not None  # rebuilt
+    assert list((user_dir("cache") / "catalogs").glob("files-*.corrupt-*"))
+    load_files(p)
+    assert capsys.readouterr().err == ""  # rebuilt, then used quietly
 
 
 def test_wide_random_rows_agree_with_plain_slicing():

@@ -141,11 +141,11 @@ def test_per_scope_and_pooled():
     es = entries_from(x1, y1, "4-inch") + [dict(e, scope=None, aperture_mm=203.0, obstruction=0.33)
                                             for e in entries_from(x2, y2)]
     cals = cal.fit_log(es)
-    assert [c.scope for c in cals] == ["4-inch", "203 mm (33% obstructed)"]
+    assert [c.scope for c in cals] == ["4-inch", "203 mm"]
     assert [c.split.n for c in cals] == [50, 30]
     pooled = cal.fit_log(es, per_scope=False)
     assert pooled[0].split.n == 80 and pooled[0].label == "all scopes"
-    assert "from 30 observations with the 203 mm (33% obstructed)" in cals[1].sentence()
+    assert "from 30 observations with the 203 mm" in cals[1].sentence()
 
 
 def test_the_fit_survives_the_log_and_drives_the_verdict(tmp_path):
@@ -174,3 +174,18 @@ def test_reliability_table_counts_every_entry():
     # a calibrated curve: observed fractions rise with the fitted chance
     obs = [r["observed"] for r in rows]
     assert obs[0] < obs[-1]
+
+
+def test_the_chart_is_a_png_with_the_dots_and_curves(tmp_path):
+    from planner.report.calibration_chart import calibration_figure, write_calibration_png
+
+    x, y = synthetic(40, seed=9)
+    es = entries_from(x, y)
+    c = cal.fit_entries(es, "4-inch")
+    fig = calibration_figure(c, es)
+    ax = fig.axes[0]
+    assert len(ax.collections[1].get_offsets()) == 40       # one dot per attempt (after the band)
+    assert len(ax.lines) >= 2                               # fitted and published curves
+    out = tmp_path / "fit.png"
+    write_calibration_png(c, es, out)
+    assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"     # PNG signature (ISO/IEC 15948)

@@ -128,7 +128,7 @@ def wds_copy(tmp_path):
 
 
 def _cache_entries():
-    return sorted((storage.user_dir("cache") / "catalogs").glob("orb6-*.pkl"))
+    return sorted((storage.user_dir("cache") / "catalogs").glob("files-*.cols"))
 
 
 @pytest.mark.parametrize("damage", ["flip-byte", "truncate", "garbage", "empty"])

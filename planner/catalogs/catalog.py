@@ -199,29 +199,36 @@ def _retrieved(path: Path) -> str:
 
 def load_files(path, orbits=None, use_cache: bool = True) -> Catalog:
     """A catalogue from a WDS or ORB6 file (kind detected from the content),
-    with an optional ORB6 file of orbits for a WDS file."""
-    from planner.catalogs.cache import cached_read
+    with an optional ORB6 file of orbits for a WDS file; the merged catalogue
+    is cached (:mod:`planner.catalogs.cache`)."""
+    from planner.catalogs.cache import cached_catalog
+
+    path = _user_path(path)
+    op = _user_path(orbits) if orbits is not None else None
+    sources = [path] + ([op] if op is not None else [])
+    return cached_catalog("files", sources, lambda: _parse_files(path, op, orbits), use_cache)
+
+
+def _parse_files(path: Path, op: Path | None, orbits_text) -> Catalog:
     from planner.catalogs.orb6 import read_orb6
     from planner.catalogs.wds import read_wds
 
-    path = _user_path(path)
     kind = detect_kind(path)
     problems: list = []
     wds = orb = None
     if kind == "wds":
-        wds = cached_read(path, "wds", read_wds, use_cache)
+        wds = read_wds(path)
         problems += _problems(wds, path)
     else:
-        orb = cached_read(path, "orb6", read_orb6, use_cache)
+        orb = read_orb6(path)
         problems += _problems(orb, path)
-    if orbits is not None:
-        op = _user_path(orbits)
+    if op is not None:
         if detect_kind(op) != "orb6":
             raise InputError(f"{str(op)!r} is not an ORB6 orbits text file")
-        more = cached_read(op, "orb6", read_orb6, use_cache)
+        more = read_orb6(op)
         problems += _problems(more, op)
         orb = more if orb is None else pd.concat([orb, more], ignore_index=True)
-    source = f"{kind.upper()} file {path}" + (f" + ORB6 file {orbits}" if orbits else "")
+    source = f"{kind.upper()} file {path}" + (f" + ORB6 file {orbits_text}" if orbits_text else "")
     return merge(wds, orb, source=source, retrieved=_retrieved(path), problems=problems)
 
 

@@ -5,7 +5,7 @@ Catalogue (BSC5; built by ``scripts/build_name_index.py``), shipped in the packa
 tree, installed as package data so a plain ``pip install .`` finds it).
 
 Parsed files are cached (:mod:`planner.catalogs.cache`), so a second call
-only unpickles.
+only reads the cached columns.
 """
 
 from __future__ import annotations
@@ -84,16 +84,24 @@ def read_bsc5_pairs(path):
 def load_sample(use_cache: bool = True) -> Catalog:
     """The bundled real sample as a :class:`~planner.catalogs.catalog.Catalog`
     (3 WDS pairs, one pair per ORB6 system without a WDS row, and the BSC5
-    bright pairs that neither has)."""
-    from planner.catalogs.cache import cached_read
+    bright pairs that neither has); the merged catalogue is cached
+    (:mod:`planner.catalogs.cache`)."""
+    from planner.catalogs.cache import cached_catalog
+
+    stack, wds_path, orb_path = sample_paths()
+    bsc5_path = stack.bsc5
+    with stack:
+        return cached_catalog("sample", [wds_path, orb_path, bsc5_path],
+                              lambda: _parse(wds_path, orb_path, bsc5_path), use_cache)
+
+
+def _parse(wds_path, orb_path, bsc5_path) -> Catalog:
     from planner.catalogs.orb6 import read_orb6
     from planner.catalogs.wds import read_wds
 
-    stack, wds_path, orb_path = sample_paths()
-    with stack:
-        wds = cached_read(wds_path, "wds", read_wds, use_cache)
-        orb = cached_read(orb_path, "orb6", read_orb6, use_cache)
-        bright = read_bsc5_pairs(stack.bsc5)
+    wds = read_wds(wds_path)
+    orb = read_orb6(orb_path)
+    bright = read_bsc5_pairs(bsc5_path)
     problems = [(WDS_FILE, ln, why) for ln, why in wds.attrs.get("problems", [])]
     problems += [(ORB6_FILE, ln, why) for ln, why in orb.attrs.get("problems", [])]
     return merge(wds, orb, source=SOURCE, retrieved=RETRIEVED, problems=problems, bright_pairs=bright)

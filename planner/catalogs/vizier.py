@@ -425,14 +425,17 @@ def write_snapshot(meta: dict, files: dict[str, bytes]) -> Path:
 
 
 def current_snapshot() -> dict | None:
-    """The metadata of the current snapshot, or None when there is none."""
+    """The metadata of the current snapshot, or None when there is none.
+
+    A pointer that does not parse, has the wrong shape, or names a folder or
+    file outside the snapshot folder is moved aside (one line on stderr) and
+    treated as no snapshot, so the bundled sample is used."""
     p = snapshot_root() / "current.json"
     if not p.exists():
         return None
     try:
         meta = json.loads(p.read_text("utf-8"))
-        if meta.get("version") != SNAPSHOT_VERSION:
-            raise ValueError(f"snapshot version {meta.get('version')}")
+        _check_pointer(meta)
         return meta
     except (ValueError, OSError) as exc:
         from planner.config.storage import quarantine
@@ -440,6 +443,35 @@ def current_snapshot() -> dict | None:
         moved = quarantine(p)
         note(f"warning: the VizieR snapshot pointer was damaged ({exc}); moved to {moved.name}")
         return None
+
+
+def _inside(name, what: str) -> str:
+    """``name`` as one plain path component (no folders, no '..', not absolute)."""
+    if not isinstance(name, str) or not name or name in (".", "..") or "/" in name or "\\" in name \
+            or "\0" in name or Path(name).is_absolute():
+        raise ValueError(f"{what} {name!r} is not a name inside the snapshot folder")
+    return name
+
+
+def _check_pointer(meta) -> None:
+    """Raise ValueError unless ``meta`` is a pointer of the expected shape, its paths inside the folder."""
+    if not isinstance(meta, dict):
+        raise ValueError("not a JSON object")
+    if meta.get("version") != SNAPSHOT_VERSION:
+        raise ValueError(f"snapshot version {meta.get('version')}")
+    for key in ("source", "retrieved"):
+        if not isinstance(meta.get(key), str):
+            raise ValueError(f"{key} is not text")
+    _inside(meta.get("directory"), "directory")
+    files = meta.get("files", {})
+    if not isinstance(files, dict):
+        raise ValueError("files is not an object")
+    for kind, info in files.items():
+        if kind not in ("wds", "orb6") or not isinstance(info, dict):
+            raise ValueError(f"file entry {kind!r} has the wrong shape")
+        _inside(info.get("name"), "file")
+        if info.get("format") not in ("votable", "text"):
+            raise ValueError(f"file format {info.get('format')!r}")
 
 
 def _read_vot(kind):
@@ -453,26 +485,35 @@ def _read_vot(kind):
 
 
 def load_snapshot() -> Catalog:
-    """The catalogue of the current snapshot; CatalogError when there is none."""
-    from planner.catalogs.cache import cached_read
-    from planner.catalogs.orb6 import read_orb6
-    from planner.catalogs.wds import read_wds
+    """The catalogue of the current snapshot; CatalogError when there is none.
+    The merged catalogue is cached (:mod:`planner.catalogs.cache`)."""
+    from planner.catalogs.cache import cached_catalog
 
     meta = current_snapshot()
     if meta is None:
         raise CatalogError("no VizieR snapshot yet; run 'splitplan catalog fetch' or "
                            "'splitplan catalog import PATH'")
     d = snapshot_root() / meta["directory"]
+    files = meta.get("files", {})
+    for info in files.values():
+        if not (d / info["name"]).exists():
+            raise CatalogError(f"VizieR snapshot file {d / info['name']} is missing; fetch or import again")
+    return cached_catalog("snapshot", [d / info["name"] for info in files.values()],
+                          lambda: _parse_snapshot(meta, d))
+
+
+def _parse_snapshot(meta: dict, d: Path) -> Catalog:
+    from planner.catalogs.orb6 import read_orb6
+    from planner.catalogs.wds import read_wds
+
     parts, problems = {}, []
     for kind, info in meta.get("files", {}).items():
         path = d / info["name"]
-        if not path.exists():
-            raise CatalogError(f"VizieR snapshot file {path} is missing; fetch or import again")
         try:
             if info["format"] == "votable":
-                df = cached_read(path, f"vot-{kind}", _read_vot(kind))
+                df = _read_vot(kind)(path)
             else:
-                df = cached_read(path, kind, read_wds if kind == "wds" else read_orb6)
+                df = (read_wds if kind == "wds" else read_orb6)(path)
         except (NetworkError, CatalogError) as exc:
             raise CatalogError(f"the VizieR snapshot file {path.name} cannot be read ({exc}); "
                                "fetch or import again") from None

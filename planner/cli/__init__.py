@@ -1,14 +1,15 @@
 """The ``splitplan`` command line: a thin layer over the public API.
 
-Each command group lives in its own module and registers itself on :data:`app`.
+Built on the standard library's :mod:`argparse` (:mod:`planner.cli.parser`).
+Each command lives in its own module and is listed in :func:`command_tree`.
 Modules import heavy libraries (pandas, astropy, skyfield, matplotlib) inside
 the command functions, never at import time, so ``splitplan --help`` and a
 one-pair check start fast.
 
 Errors: every :class:`planner.errors.PlannerError` becomes one line on stderr
-(``splitplan: error: ...``) and its exit code (1 failure, 2 usage); click's own
-usage errors keep their exit code 2.  No traceback reaches the user unless
-``SPLITPLAN_DEBUG=1`` is set.
+(``splitplan: error: ...``) and its exit code (1 failure, 2 usage); parsing
+errors (:class:`planner.cli.parser.UsageError`) are usage errors, exit 2.
+No traceback reaches the user unless ``SPLITPLAN_DEBUG=1`` is set.
 """
 
 from __future__ import annotations
@@ -16,60 +17,27 @@ from __future__ import annotations
 import os
 import sys
 
-import typer
+from planner.cli.parser import PROG, Group, dispatch
 
-app = typer.Typer(
-    name="splitplan",
-    help=(
-        "Which close double stars can your telescope split tonight?\n\n"
+HELP = ("Which close double stars can your telescope split tonight? "
         "Reads the USNO double-star and orbit catalogues (a real sample is bundled), "
         "moves each binary along its orbit to tonight, works out when it is well up "
-        "in the dark at your site, and judges it against your aperture and seeing."
-    ),
-    no_args_is_help=True,
-    add_completion=False,
-    pretty_exceptions_enable=False,
-    context_settings={"help_option_names": ["-h", "--help"]},
-)
+        "in the dark at your site, and judges it against your aperture and seeing.")
 
 
-def _register() -> None:
-    # Each command module adds its commands to ``app``.  Import order is the
-    # order of the help listing.
-    from planner.cli import catalog_cmd  # noqa: F401
+def command_tree() -> Group:
+    """Every command, in the order of the help listing.  To add a command, write a
+    module with ``arguments(parser)``, ``run(args)`` and a ``COMMAND`` (or a ``GROUP``)
+    and list it here (see DEVELOPERS.md, "Adding a command or an option")."""
+    from planner.cli import apertures_cmd, catalog_cmd, night_cmd, pair_cmd, profile_cmd
 
-    for name in ("pair_cmd", "night_cmd", "apertures_cmd", "profile_cmd"):
-        try:
-            __import__(f"planner.cli.{name}")
-        except ModuleNotFoundError as exc:  # command not built yet
-            if exc.name != f"planner.cli.{name}":
-                raise
-
-
-def _given_value(argv: list[str], param) -> str | None:
-    """The text the user gave for option ``param`` (for the error line), if found."""
-    if getattr(param, "multiple", False):  # a repeated option: which one is bad is not known
-        return None
-    opts = [o for o in (getattr(param, "opts", None) or []) if o.startswith("-")]
-    found = None  # the last occurrence wins, as in the parser
-    for i, a in enumerate(argv):
-        for o in opts:
-            if a == o and i + 1 < len(argv):
-                found = argv[i + 1]
-            elif a.startswith(o + "="):
-                found = a[len(o) + 1:]
-    return found
-
-
-def _usage_line(exc, argv: list[str]) -> str:
-    """One line for a command-line parsing error (unknown option, bad number...)."""
-    msg = " ".join(exc.format_message().split())
-    value = _given_value(argv, getattr(exc, "param", None)) if getattr(exc, "param", None) else None
-    if value is not None and repr(value) not in msg:
-        msg = msg.rstrip('. ') + f"; got {value!r}"
-    ctx = getattr(exc, "ctx", None)
-    where = ctx.command_path if ctx is not None else "splitplan"
-    return f"{msg.rstrip('. ')} (see '{where} -h')"
+    return Group(PROG, help=HELP, children=[
+        pair_cmd.COMMAND,
+        night_cmd.COMMAND,
+        apertures_cmd.COMMAND,
+        catalog_cmd.GROUP,
+        profile_cmd.GROUP,
+    ])
 
 
 def _say(line: str) -> None:
@@ -89,34 +57,18 @@ def main(argv: list[str] | None = None) -> None:
     command-line parsing error with 2, a file-system error with 1, and any
     unexpected exception with 1 as an "internal error" line (the traceback
     only with ``SPLITPLAN_DEBUG=1``)."""
-    from typer._click.exceptions import ClickException, NoArgsIsHelpError, UsageError
-    from typer.exceptions import Abort
-
     from planner.errors import PlannerError
 
     args = list(sys.argv[1:] if argv is None else argv)
     debug = bool(os.environ.get("SPLITPLAN_DEBUG"))
-    _register()
     try:
-        rv = app(args=args, prog_name="splitplan", standalone_mode=False)
-    except PlannerError as exc:
+        rv = dispatch(command_tree(), args)
+    except PlannerError as exc:  # usage errors (UsageError) included: exit 2
         if debug:
             raise
         _say(f"splitplan: error: {exc}")
         sys.exit(exc.exit_code)
-    except NoArgsIsHelpError as exc:  # the help has been printed already
-        sys.exit(exc.exit_code)
-    except UsageError as exc:
-        if debug:
-            raise
-        _say(f"splitplan: error: {_usage_line(exc, args)}")
-        sys.exit(exc.exit_code)
-    except ClickException as exc:
-        if debug:
-            raise
-        _say(f"splitplan: error: {' '.join(exc.format_message().split())}")
-        sys.exit(exc.exit_code)
-    except (KeyboardInterrupt, Abort):
+    except KeyboardInterrupt:
         _say("splitplan: interrupted")
         sys.exit(130)
     except OSError as exc:

@@ -4,41 +4,44 @@ from __future__ import annotations
 
 import json
 import sys
-from pathlib import Path
-from typing import List, Optional
 
-import typer
-
-from planner.cli import app
 from planner.cli import options as opt
+from planner.cli.parser import Command
 
 
-@app.command("apertures", no_args_is_help=True)
-def apertures(
-    sizes: List[float] = typer.Argument(..., help="Apertures in mm, e.g. 60 80 102 127 152 203 254 305."),
-    site: Optional[str] = opt.site("Site"),
-    lat: Optional[float] = opt.lat("Site"),
-    lon: Optional[float] = opt.lon("Site"),
-    elevation: Optional[float] = opt.elevation("Site"),
-    tz: Optional[str] = opt.tz("Site"),
-    min_alt: Optional[float] = opt.min_alt("Site"),
-    date: Optional[str] = typer.Option(None, "--date", "--from", help="Local date YYYY-MM-DD (start of a range with --to)."),
-    date_to: Optional[str] = typer.Option(None, "--to", help="Last date of a range (a few nights are sampled)."),
-    nights: int = typer.Option(4, "--nights", help="Nights sampled across --from/--to."),
-    obstruction: float = typer.Option(0.0, "--obstruction", help="Central obstruction ratio for every aperture."),
-    seeing: Optional[float] = opt.seeing(),
-    steadiness: Optional[float] = opt.steadiness(),
-    darkness: Optional[str] = opt.darkness(),
-    catalog: Optional[str] = opt.catalog(),
-    minutes: Optional[float] = typer.Option(None, "--minutes", help="A pair must be up this long in the dark (default 10)."),
-    mag_max: Optional[float] = typer.Option(None, "--mag-max", help="Primary no fainter than this.", rich_help_panel="Filters"),
-    dm_max: Optional[float] = typer.Option(None, "--dm-max", help="Largest magnitude difference.", rich_help_panel="Filters"),
-    orbits_only: bool = typer.Option(False, "--orbits-only", help="Only pairs with an orbit.", rich_help_panel="Filters"),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Plot count versus aperture (.png, .svg, .pdf)."),
-    as_json: bool = typer.Option(False, "--json", help="Print the table as JSON."),
-    out: Optional[Path] = typer.Option(None, "--out", help="Write the table (.csv or .json)."),
-):
+def arguments(p) -> None:
+    p.add_argument("sizes", nargs="+", type=float,
+                   help="Apertures in mm, e.g. 60 80 102 127 152 203 254 305.")
+    g = p  # the general options
+    g.add_argument("--date", "--from", dest="date", metavar="YYYY-MM-DD",
+                   help="Local date (start of a range with --to).")
+    g.add_argument("--to", dest="date_to", metavar="YYYY-MM-DD",
+                   help="Last date of a range (a few nights are sampled).")
+    g.add_argument("--nights", type=int, default=4, metavar="N",
+                   help="Nights sampled across --from/--to (default 4).")
+    g.add_argument("--obstruction", type=float, default=0.0, metavar="RATIO",
+                   help="Central obstruction ratio for every aperture (default 0).")
+    opt.air(g)
+    opt.catalog(g)
+    g.add_argument("--minutes", type=float, metavar="MIN",
+                   help="A pair must be up this long in the dark (default 10).")
+    g.add_argument("--plot", type=opt.path, metavar="FILE", help="Plot count versus aperture (.png, .svg, .pdf).")
+    g.add_argument("--json", dest="as_json", action="store_true", help="Print the table as JSON.")
+    g.add_argument("--out", type=opt.path, metavar="FILE", help="Write the table (.csv or .json).")
+    opt.site(p.add_argument_group("Site"))
+    f = p.add_argument_group("Filters")
+    f.add_argument("--mag-max", type=float, metavar="MAG", help="Primary no fainter than this.")
+    f.add_argument("--dm-max", type=float, metavar="MAG", help="Largest magnitude difference.")
+    f.add_argument("--orbits-only", action="store_true", help="Only pairs with an orbit.")
+
+
+def run(a) -> None:
     """How many pairs each aperture can split tonight (or over a range of nights)."""
+    sizes, date, date_to, nights, obstruction = a.sizes, a.date, a.date_to, a.nights, a.obstruction
+    site, lat, lon, elevation, tz, min_alt = (a.site, a.lat, a.lon, a.elevation, a.tz, a.min_alt)
+    seeing, steadiness, darkness, catalog, minutes = a.seeing, a.steadiness, a.darkness, a.catalog, a.minutes
+    mag_max, dm_max, orbits_only, plot, as_json, out = (a.mag_max, a.dm_max, a.orbits_only, a.plot,
+                                                         a.as_json, a.out)
     from planner.cli.night_cmd import build_request
     from planner.errors import InputError
     from planner.plan.apertures import compare_apertures, plot_counts
@@ -82,3 +85,7 @@ def apertures(
             raise InputError(f"--plot {plot}: use .png, .svg or .pdf")
         plot_counts(res, plot)
         print(f"splitplan: wrote {plot}", file=sys.stderr)
+
+
+COMMAND = Command("apertures", arguments=arguments, run=run, usage="sizes [sizes ...]", no_args_is_help=True,
+                  help="How many pairs each aperture can split tonight (or over a range of nights).")

@@ -4,18 +4,8 @@ from __future__ import annotations
 
 import json
 import sys
-from typing import Optional
 
-import typer
-
-from planner.cli import app
-
-catalog_app = typer.Typer(
-    help="The double-star and orbit catalogues the planner works from: look at them, "
-         "download the full ones from CDS VizieR, or bring in your own copy.",
-    no_args_is_help=True,
-)
-app.add_typer(catalog_app, name="catalog")
+from planner.cli.parser import Command, Group
 
 
 def _problem_summary(problems: list, limit: int = 10) -> list[str]:
@@ -30,16 +20,17 @@ def _problem_summary(problems: list, limit: int = 10) -> list[str]:
     return out
 
 
-@catalog_app.command("show")
-def show(
-    catalog: str = typer.Option("sample", "--catalog", "-c",
-                                help="'sample' (bundled), 'vizier' (your downloaded copy) or the "
-                                     "path of a WDS summary or ORB6 orbits text file."),
-    orbits: Optional[str] = typer.Option(None, "--orbits",
-                                         help="An ORB6 orbits file to go with a WDS file."),
-    as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
-):
+def show_arguments(p) -> None:
+    p.add_argument("--catalog", "-c", default="sample", metavar="SOURCE",
+                   help="'sample' (bundled, the default), 'vizier' (your downloaded copy) or the "
+                        "path of a WDS summary or ORB6 orbits text file.")
+    p.add_argument("--orbits", metavar="FILE", help="An ORB6 orbits file to go with a WDS file.")
+    p.add_argument("--json", dest="as_json", action="store_true", help="Print the summary as JSON.")
+
+
+def show(a) -> None:
     """Say which catalogue is loaded, when it was copied, and what it holds."""
+    catalog, orbits, as_json = a.catalog, a.orbits, a.as_json
     from planner.catalogs.catalog import load_catalog
 
     cat = load_catalog(catalog, orbits=orbits)
@@ -60,8 +51,7 @@ def show(
         print(f"  {line}")
 
 
-@catalog_app.command("fetch")
-def fetch():
+def fetch(a) -> None:
     """Download the full WDS and ORB6 from CDS VizieR and keep them as your local copy.
 
     The previous copy is kept if the download fails or is incomplete."""
@@ -76,17 +66,30 @@ def fetch():
         print(f"note: VizieR {k.upper()} table has no column for: {', '.join(v)}", file=sys.stderr)
 
 
-@catalog_app.command("import")
-def import_(
-    path: str = typer.Argument(..., help="A WDS summary or ORB6 orbits text file."),
-    orbits: Optional[str] = typer.Option(None, "--orbits",
-                                         help="An ORB6 orbits file to store with a WDS file."),
-):
-    """Check a local catalogue file and, if it reads, store a copy as your local catalogue
-    (used with --catalog vizier)."""
+def import_arguments(p) -> None:
+    p.add_argument("path", help="A WDS summary or ORB6 orbits text file.")
+    p.add_argument("--orbits", metavar="FILE", help="An ORB6 orbits file to store with a WDS file.")
+
+
+def import_(a) -> None:
+    """Check a local catalogue file and, if it reads, store a copy as your local catalogue."""
+    path, orbits = a.path, a.orbits
     from planner.catalogs import vizier
 
     meta = vizier.import_files(path, orbits=orbits)
     rows = meta["rows"]
     print(f"stored {meta['source']}: {rows['pairs']} pairs, {rows['orbits']} orbits "
           f"(use --catalog vizier)")
+
+
+GROUP = Group("catalog", help="The double-star and orbit catalogues the planner works from: look at them, "
+                              "download the full ones from CDS VizieR, or bring in your own copy.", children=[
+    Command("show", arguments=show_arguments, run=show,
+            help="Say which catalogue is loaded, when it was copied, and what it holds."),
+    Command("fetch", arguments=lambda p: None, run=fetch,
+            help="Download the full WDS and ORB6 from CDS VizieR and keep them as your local copy. "
+                 "The previous copy is kept if the download fails or is incomplete."),
+    Command("import", arguments=import_arguments, run=import_, usage="path",
+            help="Check a local catalogue file and, if it reads, store a copy as your local catalogue "
+                 "(used with --catalog vizier)."),
+])

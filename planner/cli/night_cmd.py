@@ -9,12 +9,10 @@ from __future__ import annotations
 
 import sys
 from pathlib import Path
-from typing import List, Optional
+from typing import Optional
 
-import typer
-
-from planner.cli import app
 from planner.cli import options as opt
+from planner.cli.parser import Command
 
 
 def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min_alt=None, date=None,
@@ -154,54 +152,62 @@ def emit(plan, as_json: bool, out: Optional[Path]) -> None:
         print(f"splitplan: wrote {fmt} plan to {out}", file=sys.stderr)
 
 
-@app.command("night", no_args_is_help=True)
-def night(
-    site: Optional[str] = opt.site("Site"),
-    lat: Optional[float] = opt.lat("Site"),
-    lon: Optional[float] = opt.lon("Site"),
-    elevation: Optional[float] = opt.elevation("Site"),
-    tz: Optional[str] = opt.tz("Site"),
-    min_alt: Optional[float] = opt.min_alt("Site"),
-    date: Optional[str] = typer.Option(None, "--date", help="Local date of the evening, YYYY-MM-DD (default tonight)."),
-    scope: Optional[List[str]] = opt.scope("Telescope"),
-    aperture: Optional[List[float]] = opt.aperture("Telescope"),
-    obstruction: Optional[List[float]] = opt.obstruction("Telescope"),
-    session: Optional[Path] = typer.Option(None, "--session", help="Club session file (TOML: the site and a list of scope tables).", rich_help_panel="Telescope"),
-    seeing: Optional[float] = opt.seeing("Air"),
-    steadiness: Optional[float] = opt.steadiness("Air"),
-    darkness: Optional[str] = opt.darkness("Air"),
-    mag_max: Optional[float] = typer.Option(None, "--mag-max", help="Primary no fainter than this.", rich_help_panel="Filters"),
-    mag2_max: Optional[float] = typer.Option(None, "--mag2-max", help="Companion no fainter than this.", rich_help_panel="Filters"),
-    dm_max: Optional[float] = typer.Option(None, "--dm-max", help="Largest magnitude difference.", rich_help_panel="Filters"),
-    sep_min: Optional[float] = typer.Option(None, "--sep-min", help="Smallest separation tonight, arcsec.", rich_help_panel="Filters"),
-    sep_max: Optional[float] = typer.Option(None, "--sep-max", help="Largest separation tonight, arcsec.", rich_help_panel="Filters"),
-    constellation: Optional[List[str]] = typer.Option(None, "--constellation", help="IAU abbreviation, e.g. Cyg (repeatable).", rich_help_panel="Filters"),
-    ra_from: Optional[float] = typer.Option(None, "--ra-from", help="RA window start, hours.", rich_help_panel="Filters"),
-    ra_to: Optional[float] = typer.Option(None, "--ra-to", help="RA window end, hours (may wrap past 0h).", rich_help_panel="Filters"),
-    orbits_only: bool = typer.Option(False, "--orbits-only", help="Only pairs whose position comes from an orbit.", rich_help_panel="Filters"),
-    targets: Optional[Path] = typer.Option(None, "--targets", help="Your own list (CSV of WDS ids or designations).", rich_help_panel="Filters"),
-    catalog: Optional[str] = opt.catalog(),
-    minutes: Optional[float] = typer.Option(None, "--minutes", help="Minutes per target (default 10).", rich_help_panel="Schedule"),
-    limit: Optional[int] = typer.Option(None, "--limit", help="At most this many pairs per scope (default: as many as the night holds).", rich_help_panel="Schedule"),
-    challenges: bool = typer.Option(False, "--challenges", help="Add near misses in their own section.", rich_help_panel="Schedule"),
-    start: Optional[str] = typer.Option(None, "--start", help="Start no earlier than HH:MM local.", rich_help_panel="Schedule"),
-    end: Optional[str] = typer.Option(None, "--end", help="Finish by HH:MM local.", rich_help_panel="Schedule"),
-    share_margin: Optional[float] = typer.Option(None, "--share-margin", help="Club sharing: margin counted as comfortable (default 1.5).", rich_help_panel="Schedule"),
-    as_json: bool = typer.Option(False, "--json", help="Print a JSON array, one object per scheduled pair.", rich_help_panel="Output"),
-    out: Optional[Path] = typer.Option(None, "--out", help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt", rich_help_panel="Output"),
-    save_plan: Optional[Path] = typer.Option(None, "--save-plan", help="Record every input in a plan file (TOML).", rich_help_panel="Output"),
-    plan_file: Optional[Path] = typer.Option(None, "--plan", help="Rerun the inputs recorded in a plan file.", rich_help_panel="Output"),
-):
+def arguments(p) -> None:
+    g = p  # the general options
+    g.add_argument("--date", metavar="YYYY-MM-DD", help="Local date of the evening (default tonight).")
+    opt.catalog(g)
+    opt.site(p.add_argument_group("Site"))
+    t = p.add_argument_group("Telescope")
+    opt.telescope(t)
+    t.add_argument("--session", type=opt.path, metavar="FILE",
+                   help="Club session file (TOML: the site and a list of scope tables).")
+    opt.air(p.add_argument_group("Air"))
+    f = p.add_argument_group("Filters")
+    f.add_argument("--mag-max", type=float, metavar="MAG", help="Primary no fainter than this.")
+    f.add_argument("--mag2-max", type=float, metavar="MAG", help="Companion no fainter than this.")
+    f.add_argument("--dm-max", type=float, metavar="MAG", help="Largest magnitude difference.")
+    f.add_argument("--sep-min", type=float, metavar="ARCSEC", help="Smallest separation tonight, arcsec.")
+    f.add_argument("--sep-max", type=float, metavar="ARCSEC", help="Largest separation tonight, arcsec.")
+    f.add_argument("--constellation", action="append", metavar="ABBR",
+                   help="IAU abbreviation, e.g. Cyg (repeatable).")
+    f.add_argument("--ra-from", type=float, metavar="HOURS", help="RA window start, hours.")
+    f.add_argument("--ra-to", type=float, metavar="HOURS", help="RA window end, hours (may wrap past 0h).")
+    f.add_argument("--orbits-only", action="store_true", help="Only pairs whose position comes from an orbit.")
+    f.add_argument("--targets", type=opt.path, metavar="FILE",
+                   help="Your own list (CSV of WDS ids or designations).")
+    s = p.add_argument_group("Schedule")
+    s.add_argument("--minutes", type=float, metavar="MIN", help="Minutes per target (default 10).")
+    s.add_argument("--limit", type=int, metavar="N",
+                   help="At most this many pairs per scope (default: as many as the night holds).")
+    s.add_argument("--challenges", action="store_true", help="Add near misses in their own section.")
+    s.add_argument("--start", metavar="HH:MM", help="Start no earlier than this local time.")
+    s.add_argument("--end", metavar="HH:MM", help="Finish by this local time.")
+    s.add_argument("--share-margin", type=float, metavar="MARGIN",
+                   help="Club sharing: margin counted as comfortable (default 1.5).")
+    o = p.add_argument_group("Output")
+    o.add_argument("--json", dest="as_json", action="store_true",
+                   help="Print a JSON array, one object per scheduled pair.")
+    o.add_argument("--out", type=opt.path, metavar="FILE",
+                   help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt")
+    o.add_argument("--save-plan", type=opt.path, metavar="FILE", help="Record every input in a plan file (TOML).")
+    o.add_argument("--plan", dest="plan_file", type=opt.path, metavar="FILE",
+                   help="Rerun the inputs recorded in a plan file.")
+
+
+#: the night options that build the request (everything but the output options)
+REQUEST_OPTIONS = ("site", "lat", "lon", "elevation", "tz", "min_alt", "date", "scope", "aperture",
+                   "obstruction", "session", "seeing", "steadiness", "darkness", "mag_max", "mag2_max",
+                   "dm_max", "sep_min", "sep_max", "constellation", "ra_from", "ra_to", "orbits_only",
+                   "targets", "catalog", "minutes", "limit", "challenges", "start", "end", "share_margin")
+
+
+def run(a) -> None:
     """Pairs your telescope can split tonight, ranked and ordered through the night."""
+    darkness, out, plan_file, save_plan, as_json = a.darkness, a.out, a.plan_file, a.save_plan, a.as_json
+    given = {k: getattr(a, k) for k in REQUEST_OPTIONS}
     from planner.errors import InputError
     from planner.plan.night import plan_night
 
-    given = dict(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
-                 scope=scope, aperture=aperture, obstruction=obstruction, session=session, seeing=seeing,
-                 steadiness=steadiness, darkness=darkness, mag_max=mag_max, mag2_max=mag2_max, dm_max=dm_max,
-                 sep_min=sep_min, sep_max=sep_max, constellation=constellation, ra_from=ra_from, ra_to=ra_to,
-                 orbits_only=orbits_only, targets=targets, catalog=catalog, minutes=minutes, limit=limit,
-                 challenges=challenges, start=start, end=end, share_margin=share_margin)
     opt.check_darkness(darkness)
     check_out(out)
     if plan_file is not None:
@@ -230,3 +236,7 @@ def request_from_plan(path):
     if v and v != __version__:
         print(f"splitplan: note: {path} was written by splitplan {v}; this is {__version__}", file=sys.stderr)
     return NightRequest.from_dict(data)
+
+
+COMMAND = Command("night", arguments=arguments, run=run, no_args_is_help=True,
+                  help="Pairs your telescope can split tonight, ranked and ordered through the night.")

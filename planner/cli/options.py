@@ -1,75 +1,95 @@
 """Command-line options that several commands share (site, telescope, air, catalogue).
 
-Each function returns a fresh Typer option so that a command can place it in
-its own help panel; names and help texts are defined once here.  The names
-``--lat --lon --elevation --tz --date --aperture --obstruction --seeing
---catalog --json --out`` are part of the stable command-line contract.
+Each function adds its options to an argparse parser or argument group, so a
+command places them under its own heading; names, metavars and help texts are
+defined once here.  The names ``--lat --lon --elevation --tz --date
+--aperture --obstruction --seeing --catalog --json --out`` are part of the
+stable command-line contract.
+
+Parsing only: these functions turn words into numbers and strings.  Building
+the site, telescope and night objects from the parsed values happens after
+parsing (:func:`site_values`, :func:`scope_values`, :func:`air_values` hand the
+values on by name).
 """
 
 from __future__ import annotations
 
-import typer
+from pathlib import Path
 
 DARKNESS = ("civil", "nautical", "astronomical")
 
-
-def site(panel: str | None = None):
-    return typer.Option(None, "--site", help="Saved site profile (see 'splitplan profile site list').",
-                        rich_help_panel=panel)
-
-
-def lat(panel: str | None = None):
-    return typer.Option(None, "--lat", help="Latitude, deg (north +).", rich_help_panel=panel)
-
-
-def lon(panel: str | None = None):
-    return typer.Option(None, "--lon", help="Longitude, deg (east +).", rich_help_panel=panel)
-
-
-def elevation(panel: str | None = None):
-    return typer.Option(None, "--elevation", help="Height above sea level, m.", rich_help_panel=panel)
-
-
-def tz(panel: str | None = None):
-    return typer.Option(None, "--tz", help="IANA time zone, e.g. Europe/Berlin.", rich_help_panel=panel)
-
-
-def min_alt(panel: str | None = None):
-    return typer.Option(None, "--min-alt", help="Lowest useful altitude, deg (default 20).", rich_help_panel=panel)
+#: option name -> (flags, add_argument keywords); help texts in our words
+SHARED = {
+    "site": (("--site",), dict(metavar="NAME", help="Saved site profile (see 'splitplan profile site list').")),
+    "lat": (("--lat",), dict(type=float, metavar="DEG", help="Latitude, deg (north +).")),
+    "lon": (("--lon",), dict(type=float, metavar="DEG", help="Longitude, deg (east +).")),
+    "elevation": (("--elevation",), dict(type=float, metavar="M", help="Height above sea level, m.")),
+    "tz": (("--tz",), dict(metavar="ZONE", help="IANA time zone, e.g. Europe/Berlin.")),
+    "min_alt": (("--min-alt",), dict(type=float, metavar="DEG",
+                                     help="Lowest useful altitude, deg (default 20).")),
+    "obstruction": (("--obstruction",), dict(type=float, action="append", metavar="RATIO",
+                                             help="Central obstruction, diameter ratio 0-0.9.")),
+    "seeing": (("--seeing",), dict(type=float, metavar="ARCSEC", help="Seeing FWHM at the zenith, arcsec.")),
+    "steadiness": (("--steadiness",), dict(type=float, metavar="N",
+                                           help="Steadiness 1-10 by eye, converted by the seeing table "
+                                                "(docs/plan.md).")),
+    "darkness": (("--darkness",), dict(metavar="LEVEL",
+                                       help="How dark the window must be: civil (Sun below -6 deg), "
+                                            "nautical (-12, default) or astronomical (-18).")),
+}
 
 
-def scope(panel: str | None = None, many: bool = True):
-    return typer.Option(None, "--scope", rich_help_panel=panel,
-                        help="Saved telescope" + (" (repeat for a club session)." if many else "."))
+def add(group, *names: str) -> None:
+    """Add the shared options ``names`` (keys of :data:`SHARED`) to ``group``."""
+    for name in names:
+        flags, kw = SHARED[name]
+        group.add_argument(*flags, dest=name, **kw)
 
 
-def aperture(panel: str | None = None, many: bool = True):
-    return typer.Option(None, "--aperture", rich_help_panel=panel,
-                        help="Clear aperture, mm" + (" (repeatable)." if many else "."))
+def site(group) -> None:
+    """--site --lat --lon --elevation --tz --min-alt."""
+    add(group, "site", "lat", "lon", "elevation", "tz", "min_alt")
 
 
-def obstruction(panel: str | None = None):
-    return typer.Option(None, "--obstruction", help="Central obstruction, diameter ratio 0-0.9.",
-                        rich_help_panel=panel)
+def telescope(group, many: bool = True) -> None:
+    """--scope --aperture --obstruction (each repeatable)."""
+    group.add_argument("--scope", action="append", metavar="NAME",
+                       help="Saved telescope" + (" (repeat for a club session)." if many else "."))
+    group.add_argument("--aperture", action="append", type=float, metavar="MM",
+                       help="Clear aperture, mm" + (" (repeatable)." if many else "."))
+    add(group, "obstruction")
 
 
-def seeing(panel: str | None = None):
-    return typer.Option(None, "--seeing", help="Seeing FWHM at the zenith, arcsec.", rich_help_panel=panel)
+def air(group) -> None:
+    """--seeing --steadiness --darkness."""
+    add(group, "seeing", "steadiness", "darkness")
 
 
-def steadiness(panel: str | None = None):
-    return typer.Option(None, "--steadiness", rich_help_panel=panel,
-                        help="Steadiness 1-10 by eye, converted by the seeing table (docs/plan.md).")
+def catalog(group, default: str | None = None) -> None:
+    group.add_argument("--catalog", default=default, metavar="SOURCE",
+                       help="sample (bundled), vizier (local snapshot) or a file path"
+                            + (f" (default {default})." if default else "."))
 
 
-def darkness(panel: str | None = None):
-    return typer.Option(None, "--darkness", rich_help_panel=panel,
-                        help="How dark the window must be: civil (Sun below -6 deg), nautical (-12, default) "
-                             "or astronomical (-18).")
+def path(text: str) -> Path:
+    """argparse type for file names."""
+    return Path(text)
 
 
-def catalog(default: str | None = None):
-    return typer.Option(default, "--catalog", help="sample (bundled), vizier (local snapshot) or a file path.")
+# -- handing parsed values on ------------------------------------------------------------
+
+
+def site_values(args) -> dict:
+    """The site options as keywords (for ``build_request``)."""
+    return {k: getattr(args, k) for k in ("site", "lat", "lon", "elevation", "tz", "min_alt")}
+
+
+def scope_values(args) -> dict:
+    return {k: getattr(args, k) for k in ("scope", "aperture", "obstruction")}
+
+
+def air_values(args) -> dict:
+    return {k: getattr(args, k) for k in ("seeing", "steadiness", "darkness")}
 
 
 def check_darkness(value: str | None) -> None:

@@ -16,12 +16,10 @@ from __future__ import annotations
 
 import sys
 from pathlib import Path
-from typing import List, Optional
+from typing import Optional
 
-import typer
-
-from planner.cli import app
 from planner.cli import options as opt
+from planner.cli.parser import Command
 
 MAX_TABLE_ROWS = 2000
 TONIGHT = "Verdict tonight (needs a site and a telescope)"
@@ -422,33 +420,33 @@ def render_tonight(rep: dict) -> str:
     return "\n".join(lines) + "\n"
 
 
-@app.command("pair", no_args_is_help=True)
-def pair(
-    query: str = typer.Argument(..., help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272)."),
-    catalog: str = opt.catalog("sample"),
-    date: Optional[str] = typer.Option(None, "--date", help="Date YYYY-MM-DD (the evening, for the verdict); default now."),
-    epoch: Optional[float] = typer.Option(None, "--epoch", help="Epoch as a year, e.g. 2031.5 (Besselian)."),
-    years: Optional[str] = typer.Option(None, "--years", help="Table over FROM:TO[:STEP] years, e.g. 2020:2040:2."),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Draw the apparent orbit to FILE.png or FILE.svg."),
-    as_json: bool = typer.Option(False, "--json", help="Machine-readable output."),
-    precession: str = typer.Option("j2000", "--precession",
-                                   help="Precession of theta: j2000 (default), equinox or none."),
-    site: Optional[str] = opt.site(TONIGHT),
-    lat: Optional[float] = opt.lat(TONIGHT),
-    lon: Optional[float] = opt.lon(TONIGHT),
-    elevation: Optional[float] = opt.elevation(TONIGHT),
-    tz: Optional[str] = opt.tz(TONIGHT),
-    min_alt: Optional[float] = opt.min_alt(TONIGHT),
-    scope: Optional[List[str]] = opt.scope(TONIGHT, many=False),
-    aperture: Optional[List[float]] = opt.aperture(TONIGHT, many=False),
-    obstruction: Optional[List[float]] = opt.obstruction(TONIGHT),
-    seeing: Optional[float] = opt.seeing(TONIGHT),
-    steadiness: Optional[float] = opt.steadiness(TONIGHT),
-    darkness: Optional[str] = opt.darkness(TONIGHT),
-) -> None:
-    """Separation and position angle of one pair today (or at --date/--epoch), with method and
-    uncertainty; with a site and a telescope, also the verdict for tonight, the best time and
-    the best dates of the year."""
+def arguments(p) -> None:
+    p.add_argument("query",
+                   help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272).")
+    g = p  # the general options
+    opt.catalog(g, "sample")
+    g.add_argument("--date", metavar="YYYY-MM-DD",
+                   help="Date (the evening, for the verdict); default now.")
+    g.add_argument("--epoch", type=float, metavar="YEAR", help="Epoch as a year, e.g. 2031.5 (Besselian).")
+    g.add_argument("--years", metavar="FROM:TO[:STEP]", help="Table over a range of years, e.g. 2020:2040:2.")
+    g.add_argument("--plot", type=opt.path, metavar="FILE", help="Draw the apparent orbit to FILE.png or FILE.svg.")
+    g.add_argument("--json", dest="as_json", action="store_true", help="Machine-readable output.")
+    g.add_argument("--precession", default="j2000", metavar="FRAME",
+                   help="Precession of theta: j2000 (default), equinox or none.")
+    t = p.add_argument_group(TONIGHT)
+    opt.site(t)
+    opt.telescope(t, many=False)
+    opt.air(t)
+
+
+def run(a) -> None:
+    """Separation and position angle of one pair, and the verdict when a site and a
+    telescope are given."""
+    site, lat, lon, elevation, tz, min_alt = (a.site, a.lat, a.lon, a.elevation, a.tz, a.min_alt)
+    scope, aperture, obstruction = a.scope, a.aperture, a.obstruction
+    seeing, steadiness, darkness = a.seeing, a.steadiness, a.darkness
+    query, catalog, date, epoch, years, plot, as_json, precession = (
+        a.query, a.catalog, a.date, a.epoch, a.years, a.plot, a.as_json, a.precession)
     import json
 
     from planner.errors import InputError
@@ -487,3 +485,11 @@ def pair(
     if table is not None:
         text += "\n" + render_table(table)
     sys.stdout.write(terminal_text(text))
+
+
+COMMAND = Command(
+    "pair", arguments=arguments, run=run, usage="query", no_args_is_help=True,
+    summary="Where the companion is today: separation, position angle, method, uncertainty.",
+    help="Separation and position angle of one pair today (or at --date/--epoch), with method and "
+         "uncertainty; with a site and a telescope, also the verdict for tonight, the best time and "
+         "the best dates of the year.")

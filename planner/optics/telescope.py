@@ -37,6 +37,10 @@ class Telescope:
     pixel_um : camera pixel size (> 0) or None
     name : free text
     wavelength_nm : observing band, 550 nm (visual) by default, 200-5000 nm
+    chance_params : the observer's own calibration of the chance curve with this
+        telescope, as (key, value) pairs for :func:`planner.verdict.judge`
+        (fitted from the observation log by :mod:`planner.plan.calibration`);
+        empty = the published model
     """
 
     aperture_mm: float
@@ -47,6 +51,7 @@ class Telescope:
     pixel_um: float | None = None
     name: str = ""
     wavelength_nm: float = 550.0
+    chance_params: tuple = ()
 
     def __post_init__(self):
         def num(value, label, allowed):

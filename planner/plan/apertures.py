@@ -63,6 +63,11 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
     obstruction = float(base_scope.get("obstruction", 0.0))
     tels = [Telescope.from_mapping({"aperture_mm": a, "obstruction": obstruction, "kind": base_scope.get("kind")},
                                    f"{a:g} mm") for a in aps]
+    calibrations = ()
+    if request.calibration is not None:
+        from planner.plan.observations import calibrate
+
+        tels, calibrations = calibrate(tels, request.calibration)
     split_any = None
     table = None
     for d in dates:
@@ -94,7 +99,8 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
                           "rho_arcsec": names["rho_arcsec"].to_numpy(float),
                           "first_aperture_mm": first}, index=split_any.index)[any_k]
     return {"dates": dates, "seeing_arcsec": seeing, "seeing_origin": origin, "obstruction": obstruction,
-            "table": pd.DataFrame(rows), "pairs": pairs.sort_values("first_aperture_mm", kind="stable")}
+            "table": pd.DataFrame(rows), "pairs": pairs.sort_values("first_aperture_mm", kind="stable"),
+            "calibrations": calibrations}
 
 
 def plot_counts(result: dict, path) -> None:

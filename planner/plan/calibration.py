@@ -215,11 +215,11 @@ def fit_logistic(x, y, prior: Prior, lapse: float = LAPSE) -> LogisticFit:
 
 
 def scope_key(entry: dict) -> str:
-    """The telescope an entry was made with, as a fit is kept: the saved name, else the aperture."""
+    """The telescope an entry was made with, as a fit is kept: the saved name, else the aperture
+    ("102 mm", the name a night plan gives a telescope given by its aperture)."""
     if entry.get("scope"):
         return str(entry["scope"])
-    obs = float(entry.get("obstruction") or 0.0)
-    return f"{float(entry['aperture_mm']):g} mm" + (f" ({obs:.0%} obstructed)" if obs > 0 else "")
+    return f"{float(entry['aperture_mm']):g} mm"
 
 
 def split_data(entries: list[dict]) -> tuple[np.ndarray, np.ndarray]:
@@ -262,7 +262,7 @@ class Calibration:
     @property
     def label(self) -> str:
         return "all scopes" if not self.scope else (
-            f"the {self.scope}" if self.scope.endswith(")") or self.scope.endswith("mm") else self.scope)
+            f"the {self.scope}" if self.scope.endswith(" mm") else self.scope)
 
     @property
     def m50(self) -> float:

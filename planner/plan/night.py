@@ -397,6 +397,8 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                      seeing_arcsec=seeing, seeing_origin=session.seeing_origin, scopes=[],
                      cautions=list(CAUTIONS), session=session)
     plan.notes.append(f"rho and theta computed for epoch {nt.epoch:.3f}")
+    plan.notes += [f"{name}: limits and chances use your calibration ({cal.sentence()})"
+                   for name, cal in session.calibrations]
     up = nt.up
     judged = []
     for tel, sd in zip(session.telescopes, request.scopes):

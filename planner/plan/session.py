@@ -37,6 +37,7 @@ class Session:
     night_info: dict                 # plain values for reports (see :func:`night_summary`)
     seeing_arcsec: float
     seeing_origin: str
+    calibrations: tuple = ()         # (scope name, Calibration) when request.calibration == "mine"
 
     @property
     def local_date(self) -> str:
@@ -70,8 +71,14 @@ class Session:
         info = night_summary(night, site)
         info["local_date"] = local_date
         telescopes = tuple(Telescope.from_mapping(sd, scope_name(sd)) for sd in request.scopes)
+        calibrations = ()
+        if request.calibration is not None:
+            from planner.plan.observations import calibrate
+
+            telescopes, calibrations = calibrate(telescopes, request.calibration)
         return cls(request=dataclasses.replace(request, date=local_date), site=site, telescopes=telescopes,
-                   night=night, night_info=info, seeing_arcsec=seeing, seeing_origin=seeing_origin)
+                   night=night, night_info=info, seeing_arcsec=seeing, seeing_origin=seeing_origin,
+                   calibrations=calibrations)
 
     def window(self):
         """The dark window (two UTC ``datetime64[ns]``), cut to the optional HH:MM start and end."""

@@ -101,7 +101,7 @@ def _as_scope(telescope) -> Telescope:
 
 
 def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcsec: float = 2.0,
-               darkness: str = "nautical", minutes: float = 10.0) -> dict:
+               darkness: str = "nautical", minutes: float = 10.0, calibration: str | None = None) -> dict:
     """Can this telescope split this pair tonight, when, and when is its season?
 
     Parameters
@@ -112,6 +112,9 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
     local_date : the evening's local date (YYYY-MM-DD or date); None = tonight
     telescope : an optics ``Telescope``, a dict (aperture_mm, obstruction, ...) or an aperture in mm
     seeing_arcsec : seeing FWHM at the zenith
+    calibration : None or 'published' (the published chance curve) or 'mine' (the curve fitted
+        to the observation log, :mod:`planner.plan.calibration`; then ``calibration`` in the
+        result says which)
 
     Returns
     -------
@@ -138,6 +141,12 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
                     retrieved=str(getattr(cat, "retrieved", "")))
     site = _as_site(site)
     tel = _as_scope(telescope)
+    cal_used = None
+    if calibration is not None:
+        from planner.plan.observations import calibrate
+
+        (tel,), used = calibrate((tel,), calibration)
+        cal_used = used[0][1] if used else None
     if darkness not in DARKNESS:
         raise InputError(f"darkness {darkness!r} is not one of {', '.join(DARKNESS)}")
     date = parse_date(None if local_date is None else str(local_date), site)
@@ -178,6 +187,8 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
         "best_dates": best_dates(ra, dec, site.lat_deg, date),
         "cautions": list(CAUTIONS[:2]),
     }
+    if cal_used is not None:
+        out["calibration"] = cal_used.header()
     if not up_ok:
         out["reason"] = (out["reason"] + "; " if out["reason"] else "") + \
             f"not above {site.min_alt_deg:g} deg for {minutes:g} min in tonight's dark window"

@@ -138,6 +138,7 @@ def _inputs(plan) -> str:
              ("telescopes", scopes), ("seeing", plan.seeing_origin),
              ("per target", f"{r.minutes:g} min, " + (f"at most {r.limit} pairs per scope" if r.limit
                                                        else "as many pairs as the night holds")),
+             *[(f"chance, {name}", cal.header()) for name, cal in plan.session.calibrations],
              ("filters", filt), ("catalogue", f"{plan.catalog_source} ({r.catalog})"),
              ("splitplan", plan.version)]
     return "<dl>" + "".join(f"<dt>{E(k)}</dt><dd>{E(v)}</dd>" for k, v in items) + "</dl>"
@@ -157,6 +158,22 @@ def _night(plan) -> str:
     for note in plan.notes:
         items.append(("note", note))
     return "<dl>" + "".join(f"<dt>{E(k)}</dt><dd>{E(v)}</dd>" for k, v in items) + "</dl>"
+
+
+def _calibration(plan) -> str:
+    """The fitted chance curves, when the plan uses the observer's calibration (``--calibration mine``)."""
+    cals = plan.session.calibrations
+    if not cals:
+        return ""
+    from planner.report.calibration_chart import calibration_figure
+
+    figs = "".join(f'<img class="calibration-chart" alt="your fitted split curve, {E(name)}" '
+                   f'src="{_png(calibration_figure(cal, [], title=f"Your split curve, {name}"))}">'
+                   for name, cal in cals)
+    words = "".join(f"<li>{E(name)}: {E(cal.sentence())}</li>" for name, cal in cals)
+    return ('<section class="card"><h2>Your calibration</h2><p class="sub">Limits and chances in this plan use '
+            "the curve fitted to your observation log (splitplan log fit), not the published model (dashed).</p>"
+            f"<ul>{words}</ul><div class=\"charts\">{figs}</div></section>")
 
 
 def render_html(plan) -> str:
@@ -189,6 +206,7 @@ def render_html(plan) -> str:
         f'<img id="sky-chart" alt="sky positions of the scheduled pairs" src="{sky_img}"></div></section>',
     ]
     parts += [_scope_section(plan, sp) for sp in plan.scopes]
+    parts.append(_calibration(plan))
     parts.append(_matrix(plan))
     if diagrams:
         parts.append('<section class="card"><h2>The pairs as seen</h2><p class="sub">North up, east left '
