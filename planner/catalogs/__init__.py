@@ -57,11 +57,19 @@ def find_pairs(catalog, text, limit_arcsec=None):
     return _find(catalog, text, limit_arcsec=limit_arcsec)
 
 
-def pair_names(catalog, labels=None):
+def describe_name(catalog, text, online=False, limit_arcsec=None):
+    """What a name is (stars of the offline index, pairs of ``catalog``; with ``online``,
+    the CDS SIMBAD answer when the index has none); see :func:`planner.catalogs.resolve.describe`."""
+    from planner.catalogs.resolve import describe as _describe
+
+    return _describe(catalog, text, online=online, limit_arcsec=limit_arcsec)
+
+
+def pair_names(catalog, labels=None, rows=None):
     """Common name and constellation of pair rows; see :func:`planner.catalogs.resolve.pair_names`."""
     from planner.catalogs.resolve import pair_names as _names
 
-    return _names(catalog, labels)
+    return _names(catalog, labels, rows=rows)
 
 
 def read_target_list(path):
@@ -78,5 +86,5 @@ def restrict(catalog, targets):
     return _restrict(catalog, targets)
 
 
-__all__ = ["read_wds", "read_orb6", "load_sample", "load_catalog", "find_pair", "find_pairs", "pair_names",
+__all__ = ["read_wds", "read_orb6", "load_sample", "load_catalog", "find_pair", "find_pairs", "pair_names", "describe_name",
            "read_target_list", "restrict"]

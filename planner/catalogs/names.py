@@ -54,6 +54,19 @@ STAR_FLOAT = ("ra_deg", "dec_deg", "vmag")
 
 # -- keys --------------------------------------------------------------------------
 
+def dm_zone_key(text: str) -> str:
+    """Sign, zone and number of a Durchmusterung id, without the catalogue prefix:
+    'BD+74 1056' and the WDS's '+74 1056' -> '+74:1056'; the WDS's '-3019790'
+    (zone -30, number 19790) -> '-30:19790'; '' if not a DM number.  The WDS
+    summary line leaves out the prefix (BD, CD or CPD), so catalogue joins on DM
+    compare sign, zone and number only."""
+    m = re.fullmatch(r"\s*(?:BD|CD|CPD|CP)?\s*([+-])\s*(\d{2})\s*[°d]?\s*(\d{1,5})\s*[A-Za-z]?\s*",
+                     str(text), flags=re.I)
+    if not m:
+        return ""
+    return f"{m.group(1)}{int(m.group(2)):02d}:{int(m.group(3))}"
+
+
 def normalise_dm(text: str) -> str:
     """'BD+27 3410', 'BD +27°3410', 'CPD-60 5483' -> 'BD+27 3410' / 'CP-60 5483'; '' if not a DM number."""
     m = re.fullmatch(r"\s*(BD|CD|CPD|CP)\s*([+-])\s*(\d{1,2})\s*[°d ]?\s*(\d{1,5})\s*([A-Za-z]?)\s*",

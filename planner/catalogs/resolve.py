@@ -55,7 +55,7 @@ class _CatalogKeys:
             d = self.pairs["dm_id"].astype(str)
             has = d.str.strip() != ""
             out = np.full(len(d), "", dtype=object)
-            out[has.to_numpy()] = [nm.normalise_dm(x) for x in d[has]]
+            out[has.to_numpy()] = [nm.dm_zone_key(x) for x in d[has]]
             self._dm = out
         return self._dm
 
@@ -110,7 +110,7 @@ def rows_for_star(catalog, ix: nm.StarIndex, i: int) -> tuple[np.ndarray, str]:
             how.append("ads")
     if wids:
         hits.append(np.flatnonzero(np.isin(k.wds, list(wids))))
-    dm = s["dm"][i]
+    dm = nm.dm_zone_key(s["dm"][i])
     if dm and not hits:
         r = np.flatnonzero(k.dm == dm)
         if len(r):
@@ -237,10 +237,9 @@ def _number_rows(k: _CatalogKeys, query: nm.Query) -> np.ndarray:
                 out.append(np.flatnonzero(np.isin(k.wds, np.unique(w))))
             if m.group(1) == "ads":
                 out.append(np.flatnonzero(k.disc == f"ADS {int(m.group(2))}"))
-        m = re.fullmatch(r"dm:(.+)", key)
+        m = re.fullmatch(r"dm:[a-z]+([+-]\d+):(\d+)", key)
         if m:
-            dm = m.group(1).upper().replace(":", " ", 1).replace(":", " ")
-            out.append(np.flatnonzero(k.dm == dm))
+            out.append(np.flatnonzero(k.dm == nm.dm_zone_key(f"{m.group(1)} {m.group(2)}")))
     return np.unique(np.concatenate(out)) if out else np.array([], int)
 
 
@@ -321,11 +320,17 @@ def suggest_names(catalog, q: str, n: int = 5) -> list[str]:
 
 # -- pair names -------------------------------------------------------------------------
 
-def pair_names(catalog, labels=None) -> pd.DataFrame:
+def pair_names(catalog, labels=None, rows=None) -> pd.DataFrame:
     """``name`` (common name of the pair's primary: IAU proper name, Bayer, Flamsteed or HR)
-    and ``constellation`` (IAU abbreviation) of the pairs ``labels`` (default: all), joined by
-    WDS id, ORB6 HD/HIP/ADS numbers, BSC5 ADS number, DM number, else position."""
-    pairs = catalog.pairs if labels is None else catalog.pairs.loc[list(labels)]
+    and ``constellation`` (IAU abbreviation, '' where no star is known) of the pairs
+    ``labels`` of ``catalog.pairs`` (default: all), or of ``rows`` (any table with
+    ``wds_id``, ``discoverer``, ``components``, ``ra_deg``, ``dec_deg`` and, if present,
+    ``dm_id`` and ``coord_precise``), joined by WDS id, the ORB6 HD/HIP/ADS numbers of
+    ``catalog.orbits``, BSC5 ADS number, DM number, else position."""
+    if rows is not None:
+        pairs = rows
+    else:
+        pairs = catalog.pairs if labels is None else catalog.pairs.loc[list(labels)]
     n = len(pairs)
     name = np.full(n, "", dtype=object)
     const = np.full(n, "", dtype=object)
@@ -339,7 +344,9 @@ def pair_names(catalog, labels=None) -> pd.DataFrame:
     cand: list[list[int]] = [list(maps["wds"].get(w, ())) for w in wds]
     need = [j for j in range(n) if not cand[j]]
     if need:
-        o = catalog.orbits
+        o = getattr(catalog, "orbits", None)
+        if o is None:
+            o = pd.DataFrame({"wds_id": [], "hd": [], "hip": [], "ads": []})
         sub = o[o["wds_id"].isin(set(wds[need]))]
         by_w: dict[str, set] = {}
         for w, hd, hip, ads in zip(sub["wds_id"].astype(str), _number(sub["hd"]), _number(sub["hip"]),
@@ -355,16 +362,17 @@ def pair_names(catalog, labels=None) -> pd.DataFrame:
                     cand[j] = list(maps["ads"].get(int(m.group(1)), ()))
     need = [j for j in range(n) if not cand[j]]
     if need:
-        dms = pairs["dm_id"].astype(str).to_numpy()
+        dms = (pairs["dm_id"] if "dm_id" in pairs else pd.Series([""] * n)).astype(str).to_numpy()
         for j in need:
-            d = nm.normalise_dm(dms[j]) if dms[j].strip() else ""
+            d = nm.dm_zone_key(dms[j]) if dms[j].strip() else ""
             if d:
                 cand[j] = list(maps["dm"].get(d, ()))
     need = [j for j in range(n) if not cand[j]]
     if need:
         ra = pairs["ra_deg"].to_numpy(float)
         dec = pairs["dec_deg"].to_numpy(float)
-        precise = pairs["coord_precise"].fillna(False).to_numpy(bool)
+        precise = (pairs["coord_precise"].fillna(False).to_numpy(bool) if "coord_precise" in pairs
+                   else np.zeros(n, bool))
         sdec = maps["dec_sorted"]
         order = maps["dec_order"]
         win = nm.COARSE_TOLERANCE_ARCSEC / 3600.0
@@ -406,7 +414,7 @@ def _star_maps(ix) -> dict:
         w = s["wds_id"][i]
         if w:
             maps["wds"].setdefault(w, []).append(i)
-        d = s["dm"][i]
+        d = nm.dm_zone_key(s["dm"][i])
         if d:
             maps["dm"].setdefault(d, []).append(i)
     for col in ("hd", "hip", "ads"):
@@ -418,3 +426,69 @@ def _star_maps(ix) -> dict:
     maps["dec_sorted"] = s["dec_deg"][order]
     _star_maps._cache = (ix, maps)
     return maps
+
+
+# -- describing a name (``splitplan catalog resolve``) ---------------------------------
+
+def star_record(ix: nm.StarIndex, i: int) -> dict:
+    """What the index knows about star ``i``, as plain values."""
+    s = ix.stars
+    out = {"label": ix.label(i), "name": ix.common_name(i), "constellation": s["const"][i]}
+    for col in ("hr", "hd", "hip", "sao", "ads"):
+        out[col] = int(s[col][i]) or None
+    out["ads_components"] = s["ads_comp"][i]
+    out["dm"] = s["dm"][i]
+    out["wds_id"] = s["wds_id"][i]
+    out["wds_id_from"] = s["wds_join"][i]
+    out["iau_name_joined_by"] = s["name_join"][i]
+    out["ra_deg"] = float(s["ra_deg"][i])
+    out["dec_deg"] = float(s["dec_deg"][i])
+    v = float(s["vmag"][i])
+    out["vmag"] = v if np.isfinite(v) else None
+    return out
+
+
+def describe(catalog, text, online: bool = False, limit_arcsec: float | None = None) -> dict:
+    """Everything known about a name: the stars of the offline index, the pairs of
+    the loaded catalogue (best first) and, when ``online`` and the offline index has
+    no answer, the CDS SIMBAD answer (:mod:`planner.catalogs.online`, cached)."""
+    q = str(text).strip()
+    ix = nm.load_index()
+    stars, _ = ix.resolve(nm.parse(q))
+    out = {"query": q, "stars": [star_record(ix, i) for i in stars], "pairs": [], "source": "offline index",
+           "online": None}
+    try:
+        out["pairs"] = list(find_pairs(catalog, q, limit_arcsec=limit_arcsec))
+    except UnknownPairError as exc:
+        out["message"] = str(exc)
+        out["suggestions"] = exc.suggestions
+    if online and not out["pairs"] and not out["stars"]:
+        from planner.catalogs import online as onl
+
+        ans = onl.resolve_online(q)
+        out["online"] = ans
+        out["source"] = f"{onl.SERVICE}" + (" (cached answer)" if ans.get("cached") else "")
+        out["pairs"] = onl.pairs_for_answer(catalog, ans, limit_arcsec=limit_arcsec)
+        if out["pairs"]:
+            out.pop("message", None)
+            out.pop("suggestions", None)
+        elif ans.get("found"):
+            out["message"] = (f"{q!r} is {ans.get('main_id') or q} in {onl.SERVICE}, but no pair of the "
+                              f"loaded catalogue matches it; {FETCH_HINT}")
+        else:
+            out["message"] = f"{q!r} is not known to {onl.SERVICE} either"
+    return out
+
+
+def find_pairs_online(catalog, text, limit_arcsec: float | None = None) -> list:
+    """:func:`find_pairs`, then (only when the offline index has no answer) the CDS
+    SIMBAD look-up of :mod:`planner.catalogs.online`."""
+    try:
+        return find_pairs(catalog, text, limit_arcsec=limit_arcsec)
+    except UnknownPairError as exc:
+        if exc.known:  # a known star without a pair: the online service adds nothing
+            raise
+        d = describe(catalog, text, online=True, limit_arcsec=limit_arcsec)
+        if d["pairs"]:
+            return d["pairs"]
+        raise UnknownPairError(str(text).strip(), exc.suggestions, message=d.get("message")) from None

@@ -40,7 +40,7 @@ import numpy as np
 import pandas as pd
 
 from planner.catalogs.constellations import GREEK_KEYS, abbreviation, fold
-from planner.catalogs.names import normalise_dm
+from planner.catalogs.names import dm_zone_key, normalise_dm
 
 #: IAU-name to BSC5 star by position when no catalogue number joins them [arcsec]
 POSITION_TOLERANCE_ARCSEC = 10.0
@@ -244,10 +244,10 @@ def assign_wds_ids(stars: pd.DataFrame, orbits: pd.DataFrame | None, wds_pairs: 
             elif ad and ad in by_ads:
                 wid[i], how[i] = by_ads[ad], "orb6-ads"
     if wds_pairs is not None and len(wds_pairs):
-        by_dm = {normalise_dm(d): w for d, w in zip(wds_pairs["dm_id"], wds_pairs["wds_id"]) if normalise_dm(d)}
+        by_dm = {dm_zone_key(d): w for d, w in zip(wds_pairs["dm_id"], wds_pairs["wds_id"]) if dm_zone_key(d)}
         for i, dm in enumerate(stars["dm"]):
-            if not wid[i] and dm in by_dm:
-                wid[i], how[i] = by_dm[dm], "wds-dm"
+            if not wid[i] and dm_zone_key(dm) in by_dm:
+                wid[i], how[i] = by_dm[dm_zone_key(dm)], "wds-dm"
     stars["wds_id"] = wid
     stars["wds_join"] = how
     return stars

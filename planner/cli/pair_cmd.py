@@ -74,13 +74,19 @@ def parse_years(spec: str):
     return start + step * np.arange(n)
 
 
-def find(catalog_spec: str, query: str):
-    """Load the catalogue and look the pair up: (catalog, row label).
-    Unknown names raise UnknownPairError (one line with close matches, exit 2)."""
-    from planner.catalogs import find_pair, load_catalog
+def find(catalog_spec: str, query: str, online: bool = False):
+    """Load the catalogue and look the name up: (catalog, row labels best first).
+    Unknown names raise UnknownPairError (one line with close matches, or what a
+    known star is; exit 2); ``online`` asks CDS SIMBAD when the offline index has
+    no answer (planner.catalogs.online)."""
+    from planner.catalogs import find_pairs, load_catalog
 
     cat = load_catalog(catalog_spec or "sample")
-    return cat, find_pair(cat, query)
+    if online:
+        from planner.catalogs.resolve import find_pairs_online
+
+        return cat, find_pairs_online(cat, query)
+    return cat, find_pairs(cat, query)
 
 
 # -- computation ---------------------------------------------------------------
@@ -128,8 +134,13 @@ def geometry_report(catalog, label, epoch_yr: float, precession: str = "j2000") 
 
     p = catalog.pairs.loc[label]
     g = pair_geometry(_sub_catalog(catalog, label), epoch_yr, precession=precession).iloc[0]
+    from planner.catalogs import pair_names
+
+    star = pair_names(catalog, [label]).iloc[0]
     rep = {
         "wds_id": str(p["wds_id"]), "discoverer": str(p["discoverer"]), "components": str(p["components"]),
+        "name": str(star["name"]), "constellation": str(star["constellation"]),
+        "source": str(p.get("source", "")),
         "mag1": _clean(p.get("mag1")), "mag2": _clean(p.get("mag2")),
         "epoch_yr": float(epoch_yr), "jd": float(jd_from_besselian_year(epoch_yr)),
     }
@@ -191,7 +202,11 @@ def render_report(rep: dict) -> str:
     mags = ""
     if rep["mag1"] is not None or rep["mag2"] is not None:
         mags = f"   mags {_f(rep['mag1'], '.2f', '?')} / {_f(rep['mag2'], '.2f', '?')}"
-    lines.append(f"{_name(rep)}   WDS {rep['wds_id']}{mags}")
+    star = f"   {rep['name']}" if rep.get("name") else ""
+    star += f" ({rep['constellation']})" if rep.get("constellation") else ""
+    lines.append(f"{_name(rep)}   WDS {rep['wds_id']}{star}{mags}")
+    if rep.get("other_pairs"):
+        lines.append("also named so: " + "; ".join(rep["other_pairs"]))
     # calendar date of the epoch (UTC, to the day)
     import datetime as dt
 
@@ -422,7 +437,12 @@ def render_tonight(rep: dict) -> str:
 
 def arguments(p) -> None:
     p.add_argument("query",
-                   help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272).")
+                   help="A star name (Albireo, 'eps Lyr', 'ε¹ Lyr', '70 Oph', 'HD 165341', 'BD+27 3410'), "
+                        "a WDS id (18055+0230) or a designation (STF2272AB, 'STF 2272 AB', STF2272); "
+                        "see docs/names.md.")
+    p.add_argument("--online", action="store_true",
+                   help="If the offline name index does not know the name, ask the CDS SIMBAD name "
+                        "resolver (needs the network; answers are cached).")
     g = p  # the general options
     opt.catalog(g, "sample")
     g.add_argument("--date", metavar="YYYY-MM-DD",
@@ -454,8 +474,12 @@ def run(a) -> None:
     wants_verdict = any(v for v in (site, lat, lon, scope, aperture))
     epoch_yr = resolve_epoch(date, epoch)
     epochs = parse_years(years) if years else None
-    cat, label = find(catalog, query)
+    cat, labels = find(catalog, query, online=a.online)
+    label = labels[0]
     rep = geometry_report(cat, label, epoch_yr, precession)
+    others = cat.pairs.loc[labels[1:]]
+    rep["other_pairs"] = [f"{r.discoverer} {r.components}".strip() + f" ({r.wds_id})"
+                          for r in others.itertuples()]
     tonight = None
     if wants_verdict:
         if epoch is not None:

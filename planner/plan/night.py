@@ -71,6 +71,14 @@ def constellation_of(ra_deg, dec_deg) -> np.ndarray:
     return np.asarray(get_constellation(c, short_name=True), dtype=object)
 
 
+def constellation_abbreviation(text: str) -> str | None:
+    """The IAU abbreviation for a constellation written as abbreviation or Latin name,
+    nominative or genitive, any case ('cyg', 'Cygnus', 'Cygni' -> 'Cyg'); None if unknown."""
+    from planner.catalogs.constellations import constellation
+
+    return constellation(text)
+
+
 def constellation_abbreviations() -> set[str]:
     """The 88 IAU constellation abbreviations, lower case (astropy's data file of
     the IAU names, the same one ``get_constellation`` uses)."""
@@ -106,7 +114,7 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
         method = table["method"].astype(str).to_numpy()
         keep &= np.char.startswith(method.astype(str), "orbit")
     if f.get("constellations"):
-        wanted = {c.strip().lower() for c in f["constellations"]}
+        wanted = {(constellation_abbreviation(c) or c.strip()).lower() for c in f["constellations"]}
         cons = constellation_of(table["ra_deg"].to_numpy(float), table["dec_deg"].to_numpy(float))
         keep &= np.array([c.lower() in wanted for c in cons], bool) if len(cons) else keep
     out = table[keep]
@@ -225,6 +233,23 @@ def _schedule_section(session: Session, cand: pd.DataFrame, sec: Section) -> pd.
     return _finish_rows(session, sec, rows, sched)
 
 
+def add_names(catalog, sched: pd.DataFrame) -> pd.DataFrame:
+    """The schedule with the pairs' common names (IAU proper name, Bayer, Flamsteed
+    or HR of the primary; :func:`planner.catalogs.pair_names`) and, where the name
+    index knows the star, its constellation."""
+    if not len(sched) or catalog is None:
+        return sched
+    from planner.catalogs import pair_names
+
+    nm = pair_names(catalog, rows=sched)
+    out = sched.copy()
+    out["name"] = nm["name"].to_numpy(object)
+    known = nm["constellation"].to_numpy(object) != ""
+    out["constellation"] = np.where(known, nm["constellation"].to_numpy(object),
+                                    out["constellation"].to_numpy(object))
+    return out
+
+
 def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
     """Pairs per scope: ``request.limit`` if given (half of it for the near
     misses), else as many slots as the observing window holds (the near misses
@@ -270,6 +295,7 @@ def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.D
         "wds_id": rows["wds_id"].astype(str).to_numpy(),
         "discoverer": rows["discoverer"].astype(str).to_numpy(),
         "components": rows["components"].astype(str).to_numpy(),
+        "name": np.full(len(rows), "", dtype=object),  # filled by add_names
         "constellation": constellation_of(rows["ra_deg"], rows["dec_deg"]),
         "ra_deg": rows["ra_deg"].to_numpy(float),
         "dec_deg": rows["dec_deg"].to_numpy(float),
@@ -434,6 +460,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
             parts.append(extra)
         sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
             else empty_schedule()
+        sched = add_names(cat, sched)
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
         if assign is None:

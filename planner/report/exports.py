@@ -166,7 +166,7 @@ def header_lines(plan) -> list[str]:
 
 
 def table_lines(sched: pd.DataFrame) -> list[str]:
-    head = (f"{'#':>2} {'time':5} {'pair':<22} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+    head = (f"{'#':>2} {'time':5} {'pair':<22} {'name':<14} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
             f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
     lines = [head, "-" * len(head)]
     for r in sched.itertuples(index=False):
@@ -179,7 +179,8 @@ def table_lines(sched: pd.DataFrame) -> list[str]:
         note = str(r.reason)
         if r.flag:
             note = f"[{r.flag}] " + note
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+        star = str(getattr(r, "name", "") or "")[:14]
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {star:<14} {fmt_num(r.rho_arcsec, '6.2f')}\" "
                      f"{fmt_num(r.theta_deg, '4.0f', '   -')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
