@@ -9,6 +9,7 @@ session files feed the same machinery; bad input gives one line and exit 2.
 from __future__ import annotations
 
 import json
+import re
 from pathlib import Path
 
 import pandas as pd
@@ -46,7 +47,11 @@ def test_text_output_has_the_schedule_and_cautions(cli):
     code, out, err = cli("night", *DEMO, "--aperture", "102", "--limit", "5", "--minutes", "15")
     assert code == 0, err
     assert "dark (nautical)" in out and "Never point" in out and "local rules" in out
-    assert out.count("should split") + out.count("split") >= 5
+    # --limit 5: exactly five numbered schedule rows, each with its time and a verdict note
+    rows = [ln for ln in out.splitlines() if re.match(r"^\s+\d+ \d\d:\d\d ", ln)]
+    assert [int(r.split()[0]) for r in rows] == [1, 2, 3, 4, 5]
+    assert all(r.rstrip().endswith(("should split cleanly", "at the edge: needs steady moments",
+                                     "companion near the faintness limit")) for r in rows), rows
 
 
 def test_plan_file_round_trip_reproduces_the_plan(cli, tmp_path):

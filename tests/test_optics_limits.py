@@ -62,9 +62,15 @@ def test_sparrow_limit():
 
 
 def test_limit_models_by_name():
-    # every model in the dict answers by name and agrees with its function
-    for name, fn in LIMIT_MODELS.items():
-        assert limit_arcsec(150, 550, model=name) == pytest.approx(fn(150, 550))
+    # every model in the dict answers by name with its published value for D = 150 mm,
+    # 550 nm: Dawes 1867 4.56"/inch; Rayleigh 1.21967 lambda/D (first zero of J1 / pi,
+    # scipy jn_zeros); Sparrow 1916 0.9472 lambda/D (methods-reference 1 [D])
+    lod = 550e-6 / 150 * 206264.806
+    published = {"dawes": 4.56 * 25.4 / 150, "rayleigh": jn_zeros(1, 1)[0] / np.pi * lod,
+                 "sparrow": 0.9472 * lod}
+    assert set(LIMIT_MODELS) == set(published)
+    for name, want in published.items():
+        assert limit_arcsec(150, 550, model=name) == pytest.approx(want, rel=1e-4), name
     with pytest.raises(InputError, match="criterion 'abbe' is unknown"):
         limit_arcsec(100, model="abbe")
 

@@ -20,7 +20,9 @@ def test_peterson_worked_example():
 
 
 def test_peterson_only_widens_in_the_faint_zone():
-    # outside 2.4 mag of the TLM the rule leaves the equal-pair limit alone
+    # Peterson 1954 (as cited by C. Lord, methods-reference 2): within 2.4 mag of the
+    # telescope's limit TLM the required separation widens by 10^((5/8)(m2 - TLM + 2.4));
+    # outside that zone the rule leaves the equal-pair limit alone
     tlm = peterson_tlm(100)
     f = peterson_factor([tlm - 5, tlm - 2.4, tlm - 1.0, tlm], 100)
     assert f[0] == 1.0 and f[1] == pytest.approx(1.0)
@@ -31,7 +33,9 @@ def test_peterson_only_widens_in_the_faint_zone():
 def test_peterson_model_uses_physical_equal_pair_base():
     base = required_separation_arcsec(100, 0.0, 0.0, 1.5, 1.2)
     got = required_separation_arcsec(100, 3.0, 0.0, 1.5, 1.2, model="peterson1954", mag2=11.0)
-    assert got == pytest.approx(base * peterson_factor(11.0, 100))
+    # Peterson 1954: TLM = 9.1 + 5 log10(D[in]), factor 10^((5/8)(m2 - TLM + 2.4)), written out
+    tlm = 9.1 + 5 * np.log10(100 / 25.4)
+    assert got == pytest.approx(base * 10 ** (0.625 * (11.0 - tlm + 2.4)), rel=1e-9)
 
 
 def test_lord_formula_with_user_index():

@@ -115,11 +115,11 @@ def test_reported_altitude_and_airmass(plan):
 
 
 def test_margin_meets_the_split_criterion(plan):
-    from planner.verdict import MARGIN_SPLIT
-
     main = plan.schedule[plan.schedule["section"] == "plan"]
     assert (main["verdict"] == "split").all()
-    assert (main["margin"] >= MARGIN_SPLIT).all()
+    # the split threshold as documented (planner/verdict.py, docs/optics.md: margin >= 1.10),
+    # written out rather than read from the code
+    assert (main["margin"] >= 1.10).all()
     np.testing.assert_allclose(main["margin"], main["rho_arcsec"] / main["limit_arcsec"], rtol=1e-9)
     chal = plan.schedule[plan.schedule["section"] == "challenge"]
     cand = plan.scopes[0].candidates

@@ -70,7 +70,10 @@ def test_csv_parses_back_and_has_no_live_formulas(plan, tmp_path):
         assert not cells.str.match(r"^[=+\-@\t\r]").any(), col
     assert (df["components"] == "'" + EVIL_COMP).all()
     np.testing.assert_allclose(df["rho_arcsec"], plan.schedule["rho_arcsec"], rtol=1e-5)
-    assert (df["dec_deg"] < 0).any() or (df["dec_deg"] > 0).all()  # numbers stay numbers
+    # numbers stay numbers: numeric columns parse back as numbers with their values
+    for col in ("dec_deg", "ra_deg", "margin", "limit_arcsec"):
+        assert pd.api.types.is_numeric_dtype(df[col]), col
+        np.testing.assert_allclose(df[col], plan.schedule[col], rtol=1e-5, atol=1e-9)
     pd.to_datetime(df["slot_start_utc"])
 
 

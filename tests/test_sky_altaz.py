@@ -63,7 +63,10 @@ def test_altaz_matches_astropy_altaz_without_refraction(cases):
     frame = AltAz(obstime=Time(c["t"], scale="utc"), location=loc, pressure=0 * u.hPa)
     ref = SkyCoord(c["ra"] * u.deg, c["dec"] * u.deg, frame="icrs").transform_to(frame)
     err = _sep_arcsec(c["az"], c["alt"], ref.az.deg, ref.alt.deg)
-    assert err.max() <= 2.0  # issue 4 requirement; same ERFA reduction, so in practice ~1e-6"
+    assert err.max() <= 2.0  # issue 4 requirement
+    # regression tolerance near what is achieved (same ERFA reduction: ~1e-8"), so that a
+    # drift far below the requirement is still seen
+    assert err.max() <= 0.01, err.max()
 
 
 def test_altaz_matches_skyfield(cases):
@@ -91,6 +94,9 @@ def test_altaz_matches_skyfield(cases):
     err = _sep_arcsec(c["az"], c["alt"], az_ref, alt_ref)
     # skyfield ignores polar motion unless told (<0.5") and has its own UT1 table; requirement 2".
     assert err.max() <= 2.0
+    # regression tolerances near what is achieved (worst 0.54", median 0.33", docs/sky.md)
+    assert err.max() <= 0.6, err.max()
+    assert np.median(err) <= 0.4, np.median(err)
 
 
 def test_broadcasting_and_astropy_time_input():
@@ -132,7 +138,8 @@ def test_alt_az_at_fast_path_agrees_with_full_path():
     alt, az = sky.alt_az_at(ra[ok], dec[ok], site, vis["best_utc"].to_numpy()[ok], refracted=True)
     err = _sep_arcsec(az, alt, vis["az_best_deg"].to_numpy()[ok], vis["alt_best_deg"].to_numpy()[ok])
     assert ok.sum() > 100
-    assert err.max() <= 2.0
+    assert err.max() <= 2.0          # requirement
+    assert err.max() <= 0.8, err.max()   # regression: achieved 0.71" (docs/sky.md)
 
 
 def test_numpy_apparent_place_matches_erfa_atciq():

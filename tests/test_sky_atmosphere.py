@@ -174,7 +174,7 @@ def test_sky_brightness_conversion():
     """B[nL] = 34.08 exp(20.7233 - 0.92104 S): 21.0 -> 136 nL, 18.0 -> 2150 nL (methods reference section 5)."""
     assert atm.nl_from_mag(21.0) == pytest.approx(136, rel=0.005)
     assert atm.nl_from_mag(18.0) == pytest.approx(2150, rel=0.005)
-    assert atm.mag_from_nl(atm.nl_from_mag(19.3)) == pytest.approx(19.3)
+    assert atm.mag_from_nl(atm.nl_from_mag(19.3)) == pytest.approx(19.3)  # exact inverse
 
 
 def test_moon_below_horizon_adds_nothing():

@@ -59,12 +59,13 @@ def test_twilight_matches_skyfield_risings_settings(key):
         rises = np.atleast_1d(to64(ts_rise))[np.asarray(ok_rise, bool)] if len(ts_rise) else []
         ours_ev, ours_mo = getattr(night, ev), getattr(night, mo)
         if len(sets):
-            assert abs((ours_ev - sets[0]) / np.timedelta64(1, "s")) <= 60, (ev, ours_ev, sets[0])
+            # requirement 60 s; regression tolerance 1 s (achieved 0.0002 s, docs/sky.md)
+            assert abs((ours_ev - sets[0]) / np.timedelta64(1, "s")) <= 1, (ev, ours_ev, sets[0])
             checked += 1
         else:
             assert np.isnat(ours_ev), (ev, ours_ev)
         if len(rises):
-            assert abs((ours_mo - rises[-1]) / np.timedelta64(1, "s")) <= 60, (mo, ours_mo, rises[-1])
+            assert abs((ours_mo - rises[-1]) / np.timedelta64(1, "s")) <= 1, (mo, ours_mo, rises[-1])
             checked += 1
         else:
             assert np.isnat(ours_mo), (mo, ours_mo)

@@ -38,6 +38,12 @@ def test_limit_and_margin_match_the_optics(scope):
     want = required_separation_arcsec(200, [1.0, 3.0], 0.0, 2.0, 1.5)
     np.testing.assert_allclose(out["limit_arcsec"], want)
     np.testing.assert_allclose(out["margin"], np.array([1.0, 2.0]) / want)
+    # outside anchors for the same verdict path: in 2" seeing at airmass 1.5 a 200 mm
+    # telescope is seeing-limited, so the limit exceeds the Dawes limit 115.8/200 = 0.579"
+    # (Dawes 1867) and, for the dm = 3 pair, the generalised-Sparrow floor 1.46 lambda/D =
+    # 0.828" (methods-reference 2 [D])
+    assert (out["limit_arcsec"] > 4.56 * 25.4 / 200).all()
+    assert out["limit_arcsec"].iloc[1] > 1.46 * 550e-6 / 200 * 206264.806
 
 
 def test_missing_separation():
@@ -53,9 +59,10 @@ def test_not_up():
 
 
 def test_classes_follow_the_margin_thresholds():
-    # equal bright pair, perfect air: limit = Dawes (115.8/D) by calibration
+    # equal bright pair, perfect air: limit = Dawes (Dawes 1867: 4.56"/inch = 115.824"/D[mm]),
+    # 1.158" at 100 mm; thresholds 0.90 / 1.10 documented in planner/verdict.py
     t = Telescope(100)
-    dawes = 1.15824
+    dawes = 4.56 * 25.4 / 100
     out = judge(np.array([0.8, 0.97, 1.05, 1.3]) * dawes, 5.0, 5.0, 1.0, t, 0.0)
     assert list(out["verdict"]) == ["no", "challenge", "challenge", "split"]
     assert out["reason_code"].iloc[0] == "too-close"
@@ -67,8 +74,12 @@ def test_chance_is_the_documented_logistic():
     # not fitted: P = 1/(1 + exp(-(b0 + b1 ln margin))) x magnitude term (~1 for bright pairs)
     t = Telescope(100)
     margin = np.array([0.9, 1.0, 1.1, 1.5])
-    out = judge(margin * 1.15824, 4.0, 4.0, 1.0, t, 0.0)
-    p = 1 / (1 + np.exp(-(CHANCE_PARAMS["b0"] + CHANCE_PARAMS["b1"] * np.log(margin))))
+    out = judge(margin * 4.56 * 25.4 / 100, 4.0, 4.0, 1.0, t, 0.0)   # Dawes 1867 limit
+    # the documented numbers written out (planner/verdict.py: b0 = 0, b1 = 14; "50 % at
+    # margin 1, about 80 % at 1.1 and 20 % at 0.9"), not read from CHANCE_PARAMS
+    p = 1 / (1 + np.exp(-(0.0 + 14.0 * np.log(margin))))
+    assert p[1] == 0.5 and 0.78 < p[2] < 0.82 and 0.18 < p[0] < 0.22
+    assert CHANCE_PARAMS["b1"] == 14.0
     np.testing.assert_allclose(out["chance"], p, rtol=1e-6)
     assert np.all(np.diff(out["chance"]) > 0)
 
