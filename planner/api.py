@@ -16,6 +16,8 @@ is cheap.  Example::
 
 from __future__ import annotations
 
+from planner import __version__
+
 
 def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
                catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
@@ -75,6 +77,32 @@ def write_report(plan, path):
     return _write(plan, path)
 
 
+def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None,
+                others=()):
+    """Everything known about one pair at one epoch, as a
+    :class:`~planner.plan.pair_report.PairReport` (see :mod:`planner.plan.pair_report`).
+
+    ``query``: a star name, designation or WDS id (``"Albireo"``, ``"STF2272AB"``;
+    docs/names.md), or a row label of ``catalog.pairs``; ``others``: row labels of the
+    other pairs of the same name (listed in the report); ``catalog``: a spec string or a loaded Catalog; ``epoch_yr``: a
+    Besselian year (None: now); ``years``: epochs for a table, or ``"FROM:TO[:STEP]"``;
+    ``request``: a :class:`NightRequest` with the site, one telescope and the evening,
+    for the verdict.  ``report.to_dict()`` is the JSON of ``splitplan pair --json``;
+    :mod:`planner.report.pair` draws the text and the orbit plot.
+    """
+    from planner.catalogs import find_pair as _find
+    from planner.catalogs import load_catalog as _load
+    from planner.plan import pair_report as _pr
+
+    cat = _load(catalog) if isinstance(catalog, str) else catalog
+    label = query if not isinstance(query, str) and query in cat.pairs.index else _find(cat, str(query))
+    epoch = _pr.resolve_epoch() if epoch_yr is None else float(epoch_yr)
+    if isinstance(years, str):
+        years = _pr.parse_years(years)
+    return _pr.pair_report(cat, label, epoch, precession=precession, years=years, request=request,
+                           others=others)
+
+
 #: the layers underneath, importable from here too (loaded on first use)
 _LAYERS = {
     "read_wds": "planner.catalogs", "read_orb6": "planner.catalogs", "load_sample": "planner.catalogs",
@@ -86,16 +114,35 @@ _LAYERS = {
     "dawes_limit_arcsec": "planner.optics", "sparrow_limit_arcsec": "planner.optics",
     "required_separation_arcsec": "planner.optics",
     "judge": "planner.verdict",
+    # the night's inputs as the command line and plan files give them, and the jobs that take them
+    "NightRequest": "planner.plan.model",
+    "plan_request": "planner.plan.night:plan_night",
+    "compare_request": "planner.plan.apertures:compare_apertures",
+    "plot_aperture_counts": "planner.plan.apertures:plot_counts",
+    "constellation_abbreviations": "planner.plan.night",
+    "constellation_abbreviation": "planner.plan.night",
+    # names (offline index; CDS SIMBAD only when asked)
+    "find_pairs": "planner.catalogs", "pair_names": "planner.catalogs", "describe_name": "planner.catalogs",
+    "find_pairs_online": "planner.catalogs.resolve",
+    # one pair
+    "PairReport": "planner.plan.pair_report", "resolve_epoch": "planner.plan.pair_report",
+    "parse_years": "planner.plan.pair_report",
+    # the local copy of the full catalogues (CDS VizieR)
+    "fetch_vizier": "planner.catalogs.vizier:fetch", "import_catalog_files": "planner.catalogs.vizier:import_files",
+    "vizier_snapshot": "planner.catalogs.vizier:current_snapshot",
+    "vizier_folder": "planner.catalogs.vizier:snapshot_root",
 }
 
 
 def __getattr__(name):
-    mod = _LAYERS.get(name)
-    if mod is None:
+    """``_LAYERS[name]`` is ``"module"`` (same name there) or ``"module:attribute"``."""
+    spec = _LAYERS.get(name)
+    if spec is None:
         raise AttributeError(f"module 'planner.api' has no attribute {name!r}")
     import importlib
 
-    return getattr(importlib.import_module(mod), name)
+    mod, _, attr = spec.partition(":")
+    return getattr(importlib.import_module(mod), attr or name)
 
 
-__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report", *_LAYERS]
+__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report", "pair_report", *_LAYERS]

@@ -348,3 +348,13 @@ def test_one_row_per_wds_id_and_components(sample):
     # two BSC5 systems describing one pair (HR 5999 / HR 6000 at 44.1") gave two identical keys before
     key = sample.pairs["wds_id"] + "|" + sample.pairs["components"]
     assert not key.duplicated().any()
+
+
+def test_target_list_takes_star_names(sample, tmp_path):
+    from planner.catalogs import read_target_list, restrict
+
+    p = tmp_path / "targets.csv"
+    p.write_text("name,note\nAlbireo,showpiece\n\"eps Boo\",Izar\n70 Ophiuchi,\nHD 183912,again\n", encoding="utf-8")
+    cut = restrict(sample, read_target_list(p))
+    assert cut.pairs["wds_id"].tolist() == ["19307+2758", "14450+2704", "18055+0230"]
+    assert cut.pairs["user_note"].tolist()[:2] == ["showpiece", "Izar"]

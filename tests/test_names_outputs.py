@@ -255,3 +255,10 @@ def test_constellation_filter_accepts_latin_names(sample, cli):
     code, out, err = cli("night", "--lat", "52.1873", "--lon", "-2.4127", "--tz", "Europe/London",
                          "--date", "2026-12-05", "--aperture", "102", "--constellation", "Cygnusx")
     assert code == 2 and "Cygnusx" in err
+
+
+def test_pair_without_catalogued_angle_prints_and_plots(cli, tmp_path):
+    # eps Boo from BSC5: 2.8" with no position angle; the report said 'internal error' before
+    code, out, err = cli("pair", "eps Boo", "--plot", str(tmp_path / "e.png"))
+    assert code == 0, err
+    assert "Izar (Boo)" in out and "pos. angle  not catalogued" in out and (tmp_path / "e.png").exists()

@@ -202,12 +202,12 @@ def test_debug_variable_shows_the_traceback(cli, monkeypatch):
 
 def test_unexpected_exception_is_one_internal_error_line(cli, monkeypatch):
     """A bug (here a forced ZeroDivisionError) still gives one line and exit 1."""
-    import planner.cli.pair_cmd as pair_cmd
+    import planner.plan.pair_report as pair_report
 
     def broken(*a, **k):
         raise ZeroDivisionError("forced for the test")
 
-    monkeypatch.setattr(pair_cmd, "geometry_report", broken)
+    monkeypatch.setattr(pair_report, "geometry_at", broken)
     code, out, err = cli("pair", "STF2272")
     lines = [ln for ln in err.splitlines() if ln.strip()]
     assert code == 1 and len(lines) == 1 and "Traceback" not in err

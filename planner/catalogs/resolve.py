@@ -42,12 +42,17 @@ class _CatalogKeys:
         self.dec = pairs["dec_deg"].to_numpy(float)
         self.precise = pairs["coord_precise"].fillna(False).to_numpy(bool)
         self.disc = pairs["discoverer"].astype(str).to_numpy()
+        self.comp = pairs["components"].astype(str).to_numpy()
+        self.sep = pairs["sep_last_arcsec"].to_numpy(float)
         self._dm = None
         o = catalog.orbits
         self.o_wds = o["wds_id"].astype(str).to_numpy()
         self.o_hd = _number(o["hd"])
         self.o_hip = _number(o["hip"])
         self.o_ads = o["ads"].to_numpy(float)
+        self.o_comp = o["components"].astype(str).to_numpy()
+        self.o_a = o["a_arcsec"].to_numpy(float)
+        self.o_pref = o["preferred"].fillna(False).to_numpy(bool)
 
     @property
     def dm(self) -> np.ndarray:
@@ -145,19 +150,23 @@ def _star_letters(ix, i) -> set:
 
 # -- ordering ---------------------------------------------------------------------------
 
-def _rho_proxy(catalog, labels) -> np.ndarray:
-    """Catalogued separation of each pair, else the semi-major axis of its preferred orbit."""
-    from planner.catalogs.catalog import component_key
+def _ckey(label: str) -> str:
+    """catalog.component_key for one label (no blanks, '-' -> ',', '' -> 'AB')."""
+    k = str(label).replace(" ", "").replace("-", ",")
+    return k or "AB"
 
-    p = catalog.pairs.loc[labels]
-    rho = p["sep_last_arcsec"].to_numpy(float).copy()
+
+def _rho_proxy(catalog, labels) -> np.ndarray:
+    """Catalogued separation of each pair, else the semi-major axis of its preferred orbit
+    (only the few rows involved are touched)."""
+    k = _keys(catalog)
+    pos = k.labels.get_indexer(labels)
+    rho = k.sep[pos].copy()
     miss = ~np.isfinite(rho)
-    if miss.any() and len(catalog.orbits):
-        o = catalog.orbits
-        o = o[o["preferred"].astype(bool) & o["wds_id"].isin(set(p["wds_id"]))]
-        a = dict(zip(o["wds_id"].astype(str) + "|" + component_key(o["components"]), o["a_arcsec"].abs()))
-        key = (p["wds_id"].astype(str) + "|" + component_key(p["components"])).to_numpy()
-        rho[miss] = [a.get(k, np.nan) for k in key[miss]]
+    if miss.any() and len(k.o_wds):
+        sel = np.flatnonzero(k.o_pref & np.isin(k.o_wds, np.unique(k.wds[pos[miss]])))
+        a = {f"{k.o_wds[j]}|{_ckey(k.o_comp[j])}": abs(k.o_a[j]) for j in sel}
+        rho[miss] = [a.get(f"{k.wds[i]}|{_ckey(k.comp[i])}", np.nan) for i in pos[miss]]
     return rho
 
 
@@ -248,12 +257,10 @@ def _filter_components(k: _CatalogKeys, rows: np.ndarray, letters: set, want: se
     component letter with the named stars, else the whole system."""
     if not len(rows):
         return rows
-    comps = k.pairs["components"].astype(str).to_numpy()[rows]
+    comps = k.comp[rows]
     if comp:
-        from planner.catalogs.catalog import component_key
-
-        ck = component_key(pd.Series([comp])).iloc[0]
-        exact = rows[component_key(pd.Series(comps)).to_numpy() == ck]
+        ck = _ckey(comp)
+        exact = rows[np.array([_ckey(c) == ck for c in comps], bool)]
         if len(exact):
             return exact
         sub = rows[[bool(_letters(c)) and _letters(c) <= want for c in comps]]

@@ -29,15 +29,23 @@ def command_tree() -> Group:
     """Every command, in the order of the help listing.  To add a command, write a
     module with ``arguments(parser)``, ``run(args)`` and a ``COMMAND`` (or a ``GROUP``)
     and list it here (see DEVELOPERS.md, "Adding a command or an option")."""
-    from planner.cli import apertures_cmd, catalog_cmd, night_cmd, pair_cmd, profile_cmd
+    from planner.cli import apertures_cmd, catalog_cmd, completion_cmd, night_cmd, pair_cmd, profile_cmd
 
-    return Group(PROG, help=HELP, children=[
+    return Group(PROG, help=HELP, flags=[(("--version",), "Show the version and exit.", _version)], children=[
         pair_cmd.COMMAND,
         night_cmd.COMMAND,
         apertures_cmd.COMMAND,
         catalog_cmd.GROUP,
         profile_cmd.GROUP,
+        completion_cmd.COMMAND,
     ])
+
+
+def _version() -> int:
+    from planner.api import __version__
+
+    print(f"{PROG} {__version__}")
+    return 0
 
 
 def _say(line: str) -> None:

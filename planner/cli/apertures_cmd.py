@@ -44,7 +44,7 @@ def run(a) -> None:
                                                          a.as_json, a.out)
     from planner.cli.night_cmd import build_request
     from planner.errors import InputError
-    from planner.plan.apertures import compare_apertures, plot_counts
+    from planner.api import compare_request, plot_aperture_counts
     from planner.report.safe import terminal_text
 
     opt.check_darkness(darkness)
@@ -52,7 +52,7 @@ def run(a) -> None:
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,
                         mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only)
-    res = compare_apertures(req, sizes, date_to=date_to, nights=nights)
+    res = compare_request(req, sizes, date_to=date_to, nights=nights)
     t = res["table"]
     doc = {"dates": res["dates"], "seeing_arcsec": res["seeing_arcsec"], "obstruction": res["obstruction"],
            "apertures": [{"aperture_mm": float(r.aperture_mm), "n_split": int(r.n_split),
@@ -83,7 +83,7 @@ def run(a) -> None:
     if plot is not None:
         if plot.suffix.lower() not in (".png", ".svg", ".pdf"):
             raise InputError(f"--plot {plot}: use .png, .svg or .pdf")
-        plot_counts(res, plot)
+        plot_aperture_counts(res, plot)
         print(f"splitplan: wrote {plot}", file=sys.stderr)
 
 

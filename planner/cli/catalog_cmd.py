@@ -31,7 +31,7 @@ def show_arguments(p) -> None:
 def show(a) -> None:
     """Say which catalogue is loaded, when it was copied, and what it holds."""
     catalog, orbits, as_json = a.catalog, a.orbits, a.as_json
-    from planner.catalogs.catalog import load_catalog
+    from planner.api import load_catalog
 
     cat = load_catalog(catalog, orbits=orbits)
     info = cat.summary()
@@ -55,12 +55,12 @@ def fetch(a) -> None:
     """Download the full WDS and ORB6 from CDS VizieR and keep them as your local copy.
 
     The previous copy is kept if the download fails or is incomplete."""
-    from planner.catalogs import vizier
+    from planner.api import fetch_vizier, vizier_folder, vizier_snapshot
 
-    cat = vizier.fetch()
-    meta = vizier.current_snapshot() or {}
+    cat = fetch_vizier()
+    meta = vizier_snapshot() or {}
     print(f"stored {len(cat.pairs)} pairs and {len(cat.orbits)} orbits from {cat.source} "
-          f"({cat.retrieved}) in {vizier.snapshot_root()}")
+          f"({cat.retrieved}) in {vizier_folder()}")
     missing = {k: v for k, v in (meta.get("missing_fields") or {}).items() if v}
     for k, v in missing.items():
         print(f"note: VizieR {k.upper()} table has no column for: {', '.join(v)}", file=sys.stderr)
@@ -78,7 +78,7 @@ def resolve_arguments(p) -> None:
 
 def resolve(a) -> None:
     """What a name is, and which pairs of the loaded catalogue it names."""
-    from planner.catalogs import describe_name, load_catalog
+    from planner.api import describe_name, load_catalog
     from planner.errors import UnknownPairError
 
     cat = load_catalog(a.catalog)
@@ -116,9 +116,9 @@ def import_arguments(p) -> None:
 def import_(a) -> None:
     """Check a local catalogue file and, if it reads, store a copy as your local catalogue."""
     path, orbits = a.path, a.orbits
-    from planner.catalogs import vizier
+    from planner.api import import_catalog_files
 
-    meta = vizier.import_files(path, orbits=orbits)
+    meta = import_catalog_files(path, orbits=orbits)
     rows = meta["rows"]
     print(f"stored {meta['source']}: {rows['pairs']} pairs, {rows['orbits']} orbits "
           f"(use --catalog vizier)")

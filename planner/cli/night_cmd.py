@@ -24,7 +24,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
     """Turn command-line values into a :class:`planner.plan.model.NightRequest`."""
     from planner.config import profiles
     from planner.errors import InputError
-    from planner.plan.model import NightRequest
+    from planner.api import NightRequest
 
     site_d, site_name = None, ""
     scopes: list[dict] = []
@@ -118,7 +118,7 @@ def check_filters(filters: dict) -> None:
     if lo is not None and hi is not None and lo > hi:
         raise InputError(f"--sep-min {lo:g} is larger than --sep-max {hi:g}")
     if filters.get("constellations"):
-        from planner.plan.night import constellation_abbreviation
+        from planner.api import constellation_abbreviation
 
         bad = [c for c in filters["constellations"] if constellation_abbreviation(c) is None]
         if bad:
@@ -205,7 +205,7 @@ def run(a) -> None:
     darkness, out, plan_file, save_plan, as_json = a.darkness, a.out, a.plan_file, a.save_plan, a.as_json
     given = {k: getattr(a, k) for k in REQUEST_OPTIONS}
     from planner.errors import InputError
-    from planner.plan.night import plan_night
+    from planner.api import plan_request
 
     opt.check_darkness(darkness)
     check_out(out)
@@ -216,7 +216,7 @@ def run(a) -> None:
         req = request_from_plan(plan_file)
     else:
         req = build_request(**given)
-    plan = plan_night(req)
+    plan = plan_request(req)
     if save_plan is not None:
         from planner.config.planfile import write_plan_file
 
@@ -226,9 +226,8 @@ def run(a) -> None:
 
 
 def request_from_plan(path):
-    from planner import __version__
+    from planner.api import NightRequest, __version__
     from planner.config.planfile import read_plan_file
-    from planner.plan.model import NightRequest
 
     data = read_plan_file(path)
     v = data.get("splitplan_version")

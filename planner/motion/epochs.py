@@ -44,6 +44,26 @@ def jd_from_besselian_year(year):
     return JD_B1900 + (np.asarray(year, dtype=float) - 1900.0) * TROPICAL_YEAR_D
 
 
+def calendar_date_from_jd(jd) -> str:
+    """The calendar date (proleptic Gregorian, ISO 8601 text) of the day that holds the
+    Julian date ``jd``; a day runs from JD ``n - 0.5`` to ``n + 0.5``.
+
+    Integer algorithm of Richards (2013), *Explanatory Supplement to the Astronomical
+    Almanac*, 3rd ed., section 15.11.3 (Gregorian constants), valid for JD >= 0 (from
+    4713 BC); years outside 0-9999 are written with a sign (ISO 8601 expanded years,
+    ``-1234-05-06``), which :mod:`datetime` cannot hold.
+    """
+    j = int(np.floor(float(jd) + 0.5))
+    f = j + 1401 + (((4 * j + 274277) // 146097) * 3) // 4 - 38
+    e = 4 * f + 3
+    g = (e % 1461) // 4
+    h = 5 * g + 2
+    day = (h % 153) // 5 + 1
+    month = (h // 153 + 2) % 12 + 1
+    year = e // 1461 - 4716 + (12 + 2 - month) // 12
+    return f"{year:04d}-{month:02d}-{day:02d}" if 0 <= year <= 9999 else f"{year:+05d}-{month:02d}-{day:02d}"
+
+
 def julian_year_from_jd(jd):
     """Julian year (J2000.0 = JD 2451545.0, 365.25-day years; IAU 1976)."""
     return 2000.0 + (np.asarray(jd, dtype=float) - JD_J2000) / JULIAN_YEAR_D
