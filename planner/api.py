@@ -19,18 +19,68 @@ from __future__ import annotations
 from planner import __version__
 
 
+def _site_mapping(site, tz=None) -> dict:
+    """The site as the plan's mapping (``lat_deg``, ``lon_deg``, ``elevation_m``, ``tz`` ...) from a
+    dict (astropy Quantity values converted by their key), an astropy ``EarthLocation`` (give
+    ``tz``; UTC otherwise) or a :class:`planner.sky.Site`."""
+    from planner.units import mapping_values
+
+    if hasattr(site, "to_geodetic") and hasattr(site, "geodetic"):  # astropy EarthLocation
+        g = site.to_geodetic()
+        return {"lat_deg": float(g.lat.deg), "lon_deg": float(g.lon.deg),
+                "elevation_m": float(g.height.to_value("m")), "tz": tz or "UTC"}
+    if hasattr(site, "lat_deg") and hasattr(site, "tz"):  # a Site
+        d = {k: getattr(site, k) for k in ("lat_deg", "lon_deg", "elevation_m", "tz", "min_alt_deg")}
+        return dict(d, tz=tz or d["tz"])
+    d = mapping_values(site)
+    if tz:
+        d["tz"] = tz
+    return d
+
+
+def _evening_date(date, tz):
+    """The evening's local date (ISO text) from text, a ``datetime.date``/``datetime`` or an astropy
+    ``Time``: an instant is taken in the site's zone, and before local noon it belongs to the
+    previous evening (as the command line's "tonight")."""
+    import datetime as dt
+
+    if date is None or isinstance(date, str):
+        return date
+    if hasattr(date, "to_datetime") and hasattr(date, "jd"):  # astropy Time
+        if getattr(date, "shape", ()) != ():
+            from planner.errors import InputError
+
+            raise InputError("date: give one astropy Time (the evening), not an array of them")
+        date = date.utc.to_datetime(timezone=dt.timezone.utc)
+    if isinstance(date, dt.datetime):
+        from zoneinfo import ZoneInfo
+
+        local = (date if date.tzinfo else date.replace(tzinfo=dt.timezone.utc)).astimezone(ZoneInfo(tz or "UTC"))
+        if local.hour < 12:
+            local = local - dt.timedelta(days=1)
+        return local.date().isoformat()
+    if isinstance(date, dt.date):
+        return date.isoformat()
+    return date
+
+
 def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
                catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
-               start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5):
+               start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5, tz=None):
     """The night plan (a :class:`planner.plan.model.NightPlan`); see :mod:`planner.plan.night`.
 
     ``site``: dict with ``lat_deg``, ``lon_deg``, ``elevation_m``, ``tz`` (and
-    optionally ``min_alt_deg``); ``scopes``: a list of dicts with ``name``,
-    ``aperture_mm``, ``obstruction``; ``catalog``: a spec string or a loaded
-    Catalog; ``limit``: pairs per scope (None: as many as the night holds).
+    optionally ``min_alt_deg``), or an astropy ``EarthLocation`` (with ``tz=``, else UTC);
+    ``scopes``: a list of dicts with ``name``, ``aperture_mm``, ``obstruction``;
+    ``date``: the evening (``YYYY-MM-DD``, a ``datetime.date``, or an astropy ``Time``/``datetime``
+    instant, read in the site's zone; before noon: the previous evening); ``catalog``: a spec
+    string or a loaded Catalog; ``limit``: pairs per scope (None: as many as the night holds).
+    Numbers may be astropy Quantities (``aperture_mm=4 * u.imperial.inch``, ``seeing_arcsec=1.5 * u.arcsec``):
+    converted to the unit of their name, or refused with one clear error.
     """
     from planner.plan.model import NightRequest
     from planner.plan.night import plan_night as _plan
+    from planner.units import mapping_values, value_in
 
     cat = None
     spec = catalog
@@ -38,7 +88,13 @@ def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, 
         cat, spec = catalog, str(getattr(catalog, "source", "catalog object"))
     if isinstance(scopes, dict):
         scopes = [scopes]
-    req = NightRequest(site=dict(site), scopes=[dict(s) for s in scopes], site_name=site_name, date=date,
+    site = _site_mapping(site, tz)
+    date = _evening_date(date, site.get("tz"))
+    seeing_arcsec = value_in(seeing_arcsec, "arcsec", "seeing_arcsec")
+    minutes = value_in(minutes, "min", "minutes")
+    min_alt_deg = value_in(min_alt_deg, "deg", "min_alt_deg")
+    filters = mapping_values(filters or {})
+    req = NightRequest(site=dict(site), scopes=[mapping_values(s) for s in scopes], site_name=site_name, date=date,
                        seeing_arcsec=seeing_arcsec, steadiness=steadiness, darkness=darkness, catalog=spec,
                        minutes=minutes, limit=limit, challenges=challenges, filters=dict(filters or {}),
                        start_local=start_local, end_local=end_local, min_alt_deg=min_alt_deg,
@@ -50,8 +106,17 @@ def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_ar
     """Verdict, best time tonight and best dates of the year for one pair; see
     :func:`planner.plan.single.check_pair`."""
     from planner.plan.single import check_pair as _check
+    from planner.units import mapping_values, value_in
 
-    return _check(catalog, query, site, local_date, telescope, seeing_arcsec, **kw)
+    if not hasattr(site, "min_alt_deg") or hasattr(site, "to_geodetic"):
+        site = _site_mapping(site, kw.pop("tz", None))
+    local_date = _evening_date(local_date, site.get("tz") if isinstance(site, dict) else site.tz)
+    if isinstance(telescope, dict):
+        telescope = mapping_values(telescope)
+    else:
+        telescope = value_in(telescope, "mm", "telescope")
+    return _check(catalog, query, site, local_date, telescope, value_in(seeing_arcsec, "arcsec", "seeing_arcsec"),
+                  **kw)
 
 
 def compare_apertures(site, apertures_mm, date=None, *, date_to=None, nights=4, obstruction=0.0,
@@ -61,7 +126,14 @@ def compare_apertures(site, apertures_mm, date=None, *, date_to=None, nights=4, 
     from planner.plan.apertures import compare_apertures as _cmp
     from planner.plan.model import NightRequest
 
+    from planner.units import value_in
+
     cat = None if isinstance(catalog, str) else catalog
+    site = _site_mapping(site)
+    date = _evening_date(date, site.get("tz"))
+    apertures_mm = [value_in(a, "mm", "apertures_mm") for a in
+                    (apertures_mm if not hasattr(apertures_mm, "unit") else value_in(apertures_mm, "mm", "apertures_mm"))]
+    seeing_arcsec = value_in(seeing_arcsec, "arcsec", "seeing_arcsec")
     req = NightRequest(site=dict(site), scopes=[{"aperture_mm": float(min(apertures_mm)),
                                                  "obstruction": obstruction}], date=date,
                        seeing_arcsec=seeing_arcsec, steadiness=steadiness, darkness=darkness,

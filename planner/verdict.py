@@ -48,7 +48,11 @@ Eyepiece advice (common practice, no source): the eye separates two points
 about 2-4 arcmin apart at the eyepiece; we use 3' (180"), so
 power_min = max(180" / rho, D / eye pupil).  The highest useful power is about
 2x per mm of aperture, lowered when the blur, magnified, would exceed 10'
-(600" / blur): power_max = min(2 D[mm], 600" / blur).
+(600" / blur), and capped by the seeing: beyond the power at which the seeing
+disc (its full FWHM at the pair's airmass, :func:`planner.optics.seeing.seeing_fwhm_arcsec`)
+looks 5' across, more power only magnifies the boiling (common practice, no source;
+about 150x in 2" seeing, 300x in 1"):
+power_max = min(2 D[mm], 600" / blur, 300" / seeing(X)).
 """
 
 from __future__ import annotations
@@ -64,12 +68,14 @@ from planner.optics.separability import (
     DEFAULT_STEADY_FRACTION,
     effective_blur_lod,
 )
+from planner.optics.seeing import seeing_fwhm_arcsec
 from planner.optics.telescope import Telescope
 from planner.optics.visibility_limit import (
     DEFAULT_EXTINCTION_K,
     DEFAULT_EYE_PUPIL_MM,
     limiting_magnitude,
 )
+from planner.units import wrap_public
 
 #: thresholds of the verdict classes (see module docstring)
 MARGIN_SPLIT = 1.10
@@ -83,6 +89,8 @@ EYE_RESOLUTION_ARCSEC = 180.0
 POWER_PER_MM = 2.0
 #: largest apparent size of the blur worth magnifying, arcsec (assumption)
 BLUR_APPARENT_MAX_ARCSEC = 600.0
+#: largest apparent size of the seeing disc worth magnifying, arcsec (common practice, no source)
+SEEING_APPARENT_MAX_ARCSEC = 300.0
 #: magnitude difference from which a failure in perfect air is blamed on the rings
 RING_DM = 2.5
 #: Airmass from which a pair that would pass at the zenith is called "too low"
@@ -219,6 +227,9 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     blur = effective_blur_lod(ap, see, xcalc, lam, steady_fraction, disp) * lod
     blur_tot = np.hypot(blur, 1.028 * lod)
     power_max = np.minimum(power_per_mm * ap, BLUR_APPARENT_MAX_ARCSEC / blur_tot)
+    seeing_x = seeing_fwhm_arcsec(see, xcalc, lam)
+    with np.errstate(divide="ignore"):
+        power_max = np.minimum(power_max, np.where(seeing_x > 0, SEEING_APPARENT_MAX_ARCSEC / seeing_x, np.inf))
     with np.errstate(divide="ignore", invalid="ignore"):
         power_min = np.maximum(eye_resolution_arcsec / rho, ap / eye_pupil_mm)
     power_min = np.where(rho > 0, power_min, np.nan)
@@ -315,3 +326,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
         "blur_arcsec": blur,
         "limit_best_arcsec": limit_best,
     }, index=index)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

@@ -24,7 +24,7 @@ import re
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from conftest import reference_file
@@ -135,6 +135,7 @@ def orb6_skipped(lines):
 
 @FUZZ
 @given(seed=st.integers(0, 2**32 - 1), drawn=st.lists(random_line, min_size=0, max_size=10))
+@example(seed=268377606, drawn=[])  # drew the id 12345+9004 (Dec 90 deg 04'), read as Dec +90.07 (issue 12)
 def test_fuzz_wds(seed, drawn):
     rng = random.Random(seed)
 

@@ -63,7 +63,7 @@ def test_not_placed_tonight_is_said(cli):
     code, out, err = cli("pair", "STF2272AB", "--lat", "52.19", "--lon", "-2.41", "--tz", "Europe/London",
                          "--aperture", "102", "--date", "2026-12-05")
     assert code == 0, err
-    assert "not well placed tonight" in out
+    assert "not up in the dark tonight" in out and "optics alone" in out
 
 
 def test_text_and_library_agree(cli):

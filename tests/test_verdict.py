@@ -128,8 +128,11 @@ def test_magnification_advice(scope):
     # but never below D / 7 mm (exit pupil larger than the eye's)
     out = judge([1.0, 2.0, 60.0], 5.0, 5.5, 1.0, scope, 1.0)
     np.testing.assert_allclose(out["power_min"], [180.0, 90.0, 200 / 7])
-    # highest useful power: 2x per mm (common practice, no source), capped by the blur
-    assert out["power_max"].iloc[0] == pytest.approx(400.0)
+    # highest useful power: 2x per mm (common practice, no source), capped by the blur and by the
+    # seeing: 300" / (1" x (550/500)^-0.2) = 305.8x in 1" seeing (common practice, no source;
+    # Fried 1966 wavelength scaling), below the 400x of a 200 mm aperture
+    assert out["power_max"].iloc[0] == pytest.approx(300.0 / 1.1 ** -0.2, rel=1e-6)
+    assert judge([2.0], 5.0, 5.5, 1.0, scope, 0.5)["power_max"].iloc[0] == pytest.approx(400.0)
     bad_air = judge([3.0], 5.0, 5.5, 2.0, scope, 4.0)
     assert bad_air["power_max"].iloc[0] < 400.0
     # eyepiece: lowest power at hand >= power_min (powers 50, 133, 267, 400)

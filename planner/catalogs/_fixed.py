@@ -227,7 +227,8 @@ def col(arr: np.ndarray, first: int, last: int) -> np.ndarray:
 
 
 def wds_id_ok(block: np.ndarray) -> np.ndarray:
-    """True where a 10-column block is a valid WDS id ``HHMMm+DDMM``."""
+    """True where a 10-column block is a valid WDS id ``HHMMm+DDMM`` (RA below 24 h, minutes below
+    60, |Dec| at most +-90 deg 00')."""
     d = is_digit(block)
     pattern = d[:, [0, 1, 2, 3, 4, 6, 7, 8, 9]].all(axis=1) & (
         (block[:, 5] == PLUS) | (block[:, 5] == MINUS))
@@ -236,7 +237,8 @@ def wds_id_ok(block: np.ndarray) -> np.ndarray:
     mm = v[:, 2] * 10 + v[:, 3]
     dd = v[:, 6] * 10 + v[:, 7]
     am = v[:, 8] * 10 + v[:, 9]
-    return pattern & (hh < 24) & (mm < 60) & (dd <= 90) & (am < 60)
+    # declination at most 90 deg 00': 9004 (90 deg 04') is not a declination
+    return pattern & (hh < 24) & (mm < 60) & (am < 60) & ((dd < 90) | ((dd == 90) & (am == 0)))
 
 
 def wds_id_coords(block: np.ndarray):

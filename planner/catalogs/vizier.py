@@ -188,7 +188,10 @@ def wds_from_table(table) -> pd.DataFrame:
     ids = pd.Series(out["wds_id"]).astype(str)
     ok = ids.str.fullmatch(r"\d{5}[+-]\d{4}").to_numpy(bool)
     arr = fx.to_array([s.encode("ascii", "replace") for s in ids.where(ok, "00000+0000")], 10)
+    ok = ok & fx.wds_id_ok(arr)
     ra_id, dec_id = fx.wds_id_coords(arr)
+    # an id that is not a real position gives no position (never 0h +0 deg, never Dec > 90)
+    ra_id, dec_id = np.where(ok, ra_id, np.nan), np.where(ok, dec_id, np.nan)
     ra, dec = _angles(table, WDS_LABELS["ra"], WDS_LABELS["dec"], n)
     # n_RAh = '!': the catalogue's position was itself derived from the WDS id
     from_id = pd.Series(_txt(table, WDS_LABELS["coord_flag"], n)).astype(str).str.strip() == "!"
@@ -285,6 +288,9 @@ def orb6_from_table(table) -> pd.DataFrame:
                       & (df["ecc"] < 1)).astype(bool)
     df["line_no"] = np.arange(1, n + 1, dtype=float)
     ok = df["wds_id"].str.fullmatch(r"\d{5}[+-]\d{4}").to_numpy(bool)
+    from planner.catalogs import _fixed as fx
+
+    ok = ok & fx.wds_id_ok(fx.to_array([s.encode("ascii", "replace") for s in df["wds_id"].where(ok, "00000+0000")], 10))
     problems = [(int(i) + 1, "WDS id is not HHMMm+DDMM") for i in np.flatnonzero(~ok)]
     df = df[ok].reset_index(drop=True)
     df["preferred"] = mark_preferred(df)

@@ -2,11 +2,14 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 from planner.cli import options as opt
 from planner.cli.parser import Command
+
+
+#: what ``--out -`` can write
+STREAM_FORMATS = ("csv", "json")
 
 
 def arguments(p) -> None:
@@ -27,7 +30,9 @@ def arguments(p) -> None:
                    help="A pair must be up this long in the dark (default 10).")
     g.add_argument("--plot", type=opt.path, metavar="FILE", help="Plot count versus aperture (.png, .svg, .pdf).")
     g.add_argument("--json", dest="as_json", action="store_true", help="Print the table as JSON.")
-    g.add_argument("--out", type=opt.path, metavar="FILE", help="Write the table (.csv or .json).")
+    g.add_argument("--out", type=opt.path, metavar="FILE",
+                   help="Write the table (.csv or .json), or - for standard output (with --format).")
+    opt.stream_format(g, STREAM_FORMATS)
     opt.site(p.add_argument_group("Site"))
     f = p.add_argument_group("Filters")
     f.add_argument("--mag-max", type=float, metavar="MAG", help="Primary no fainter than this.")
@@ -42,44 +47,30 @@ def run(a) -> None:
     seeing, steadiness, darkness, catalog, minutes = a.seeing, a.steadiness, a.darkness, a.catalog, a.minutes
     mag_max, dm_max, orbits_only, plot, as_json, out = (a.mag_max, a.dm_max, a.orbits_only, a.plot,
                                                          a.as_json, a.out)
+    from planner.api import compare_request, plot_aperture_counts
     from planner.cli.night_cmd import build_request
     from planner.errors import InputError
-    from planner.api import compare_request, plot_aperture_counts
-    from planner.report.safe import terminal_text
+    from planner.report.apertures import APERTURE_FORMATS, aperture_json, aperture_text
 
     opt.check_darkness(darkness)
+    opt.check_stream(out, a.out_format, as_json, STREAM_FORMATS)
+    out_fmt = a.out_format if opt.to_stdout(out) else (out.suffix.lower().lstrip(".") if out else None)
+    if out is not None and out_fmt not in APERTURE_FORMATS:
+        raise InputError(f"--out {out}: use .csv or .json for the aperture table")
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,
                         mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only)
     res = compare_request(req, sizes, date_to=date_to, nights=nights)
-    t = res["table"]
-    doc = {"dates": res["dates"], "seeing_arcsec": res["seeing_arcsec"], "obstruction": res["obstruction"],
-           "apertures": [{"aperture_mm": float(r.aperture_mm), "n_split": int(r.n_split),
-                          "n_added": int(r.n_added), "added": list(r.added)} for r in t.itertuples()]}
-    if as_json:
-        sys.stdout.write(json.dumps(doc, indent=1, ensure_ascii=False) + "\n")
+    if opt.to_stdout(out):
+        sys.stdout.write(APERTURE_FORMATS[out_fmt](res))
     else:
-        d = res["dates"]
-        span = d[0] if len(d) == 1 else f"{d[0]} .. {d[-1]} ({len(d)} nights sampled)"
-        print(f"Pairs split, {span}; seeing {res['seeing_origin']}; obstruction {res['obstruction']:.2f}")
-        print(f"{'aperture':>9} {'pairs':>6} {'added':>6}  first few added")
-        for r in t.itertuples():
-            few = terminal_text(", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else ""))
-            print(f"{r.aperture_mm:>6g} mm {r.n_split:>6} {r.n_added:>+6}  {few}")
-    if out is not None:
-        from planner.config.storage import atomic_write_text
-        from planner.report.safe import csv_cell
+        sys.stdout.write(aperture_json(res) if as_json else aperture_text(res))
+        if out is not None:
+            from planner.config.storage import atomic_write_text
 
-        ext = out.suffix.lower()
-        if ext == ".json":
-            atomic_write_text(out, json.dumps(doc, indent=1, ensure_ascii=False) + "\n")
-        elif ext == ".csv":
-            rows = t.assign(added=[csv_cell("; ".join(a)) for a in t["added"]])
-            atomic_write_text(out, rows.to_csv(index=False))
-        else:
-            raise InputError(f"--out {out}: use .csv or .json for the aperture table")
-        print(f"splitplan: wrote {out}", file=sys.stderr)
+            atomic_write_text(out, APERTURE_FORMATS[out_fmt](res))
+            print(f"splitplan: wrote {out}", file=sys.stderr)
     if plot is not None:
         if plot.suffix.lower() not in (".png", ".svg", ".pdf"):
             raise InputError(f"--plot {plot}: use .png, .svg or .pdf")

@@ -129,19 +129,26 @@ def check_filters(filters: dict) -> None:
 OUT_FORMATS = (".csv", ".json", ".xml", ".vot", ".html", ".htm", ".pdf", ".txt")
 
 
+#: what ``--out -`` can write
+STREAM_FORMATS = ("csv", "json", "votable")
+
+
 def check_out(out: Optional[Path]) -> None:
     """Refuse an unknown --out extension before any work is done."""
     from planner.errors import InputError
 
-    if out is not None and Path(out).suffix.lower() not in OUT_FORMATS:
+    if out is not None and not opt.to_stdout(out) and Path(out).suffix.lower() not in OUT_FORMATS:
         raise InputError(f"--out {out}: unknown format {Path(out).suffix or '(none)'}; "
                          f"use one of {', '.join(OUT_FORMATS)}")
 
 
-def emit(plan, as_json: bool, out: Optional[Path]) -> None:
-    from planner.report import write_report
+def emit(plan, as_json: bool, out: Optional[Path], out_format: Optional[str] = None) -> None:
+    from planner.report import report_text, write_report
     from planner.report.exports import plan_json, render_text
 
+    if opt.to_stdout(out):  # the table alone on stdout, for a pipe
+        sys.stdout.write(report_text(plan, out_format))
+        return
     if as_json:
         sys.stdout.write(plan_json(plan) + "\n")
     else:
@@ -187,7 +194,9 @@ def arguments(p) -> None:
     o.add_argument("--json", dest="as_json", action="store_true",
                    help="Print a JSON array, one object per scheduled pair.")
     o.add_argument("--out", type=opt.path, metavar="FILE",
-                   help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt")
+                   help="Also write the plan: .csv .json .xml/.vot .html .pdf .txt, or - for "
+                        "standard output (with --format).")
+    opt.stream_format(o, STREAM_FORMATS)
     o.add_argument("--save-plan", type=opt.path, metavar="FILE", help="Record every input in a plan file (TOML).")
     o.add_argument("--plan", dest="plan_file", type=opt.path, metavar="FILE",
                    help="Rerun the inputs recorded in a plan file.")
@@ -209,6 +218,7 @@ def run(a) -> None:
 
     opt.check_darkness(darkness)
     check_out(out)
+    opt.check_stream(out, a.out_format, as_json, STREAM_FORMATS)
     if plan_file is not None:
         extra = [k for k, v in given.items() if v not in (None, False, [])]
         if extra:
@@ -222,7 +232,7 @@ def run(a) -> None:
 
         write_plan_file(save_plan, plan.request.to_dict(), plan.version, plan.catalog_source)
         print(f"splitplan: saved the inputs to {save_plan} (rerun with --plan {save_plan})", file=sys.stderr)
-    emit(plan, as_json, out)
+    emit(plan, as_json, out, a.out_format)
 
 
 def request_from_plan(path):

@@ -76,6 +76,36 @@ def path(text: str) -> Path:
     return Path(text)
 
 
+# -- tables to standard output (--out - with --format) -----------------------------------
+
+#: ``--out -`` writes to standard output
+STDOUT = "-"
+
+
+def stream_format(group, formats: tuple) -> None:
+    """--format, the format of ``--out -``."""
+    group.add_argument("--format", dest="out_format", choices=formats, metavar="FORMAT",
+                       help=f"With --out -: the format written to standard output, {', '.join(formats[:-1])} "
+                            f"or {formats[-1]} (for pipes; notes stay on standard error).")
+
+
+def to_stdout(out) -> bool:
+    return out is not None and str(out) == STDOUT
+
+
+def check_stream(out, out_format, as_json: bool, formats: tuple) -> None:
+    """One-line usage errors for --out - and --format, before any work is done."""
+    from planner.errors import InputError
+
+    if to_stdout(out):
+        if out_format is None:
+            raise InputError(f"--out - writes to standard output: give --format {', '.join(formats)}")
+        if as_json:
+            raise InputError("--json and --out - both print to standard output; give one of them")
+    elif out_format is not None:
+        raise InputError("--format goes with --out - (a file's format comes from its extension)")
+
+
 # -- handing parsed values on ------------------------------------------------------------
 
 

@@ -62,6 +62,7 @@ import numpy as np
 import pandas as pd
 
 from planner.motion.orbits import VISUAL_GRADES, _epochs_for_rows, orbit_positions
+from planner.units import wrap_public
 
 #: Uncertainty floor per ORB6 grade, as a fraction of rho (theta: degrees of
 #: the same fraction in radians).  Common practice, no source.
@@ -397,3 +398,7 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
         "n_orbits": n_orbits, "epoch_yr": t,
         "reason": pd.array(reason, dtype="str"),
     }, index=pairs.index)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

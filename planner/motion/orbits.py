@@ -38,6 +38,7 @@ import pandas as pd
 
 from planner.motion.epochs import to_epoch_yr
 from planner.motion.kepler import solve_kepler
+from planner.units import wrap_public
 
 #: Annual precession in position angle per unit sin(alpha) sec(delta) [deg/yr]
 #: (n = 20.043"/yr; methods-reference section 7).
@@ -273,3 +274,7 @@ def orbit_grid(orbits: pd.DataFrame, epochs, precession: str = "j2000",
         "status": status,
         "reason": reason,
     }
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

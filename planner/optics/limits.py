@@ -23,6 +23,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import wrap_public
 
 #: arcseconds per radian
 ARCSEC_PER_RAD = 206264.80624709636
@@ -262,3 +263,7 @@ def sparrow_lod(obstruction=0.0) -> float:
         return float(g(s / 2 + h) - 2 * g(s / 2) + g(s / 2 - h))
 
     return brentq(d2, 0.6, 1.2, xtol=1e-10)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

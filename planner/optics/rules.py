@@ -36,6 +36,7 @@ from planner.optics.separability import (
     DEFAULT_STEADY_FRACTION,
     physical_separation_arcsec,
 )
+from planner.units import wrap_public
 
 MM_PER_INCH = 25.4
 
@@ -133,3 +134,7 @@ def required_separation_arcsec(aperture_mm, delta_mag, obstruction=0.0, seeing_a
     return SEPARATION_MODELS[key](ap, delta_mag, eps, seeing_arcsec, airmass, wavelength_nm, criterion,
                                   steady_fraction=steady_fraction, contrast=contrast,
                                   dispersion_arcsec=dispersion_arcsec, mag2=mag2, lord_n=lord_n)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import wrap_public
 
 #: FWHM of the long-exposure Kolmogorov PSF in units of lambda / r0 (Dierickx 1992)
 FWHM_PER_LAMBDA_R0 = 0.98
@@ -91,3 +92,7 @@ def kolmogorov_mtf(nu, fwhm_lod):
     exp(-3.44 (nu D / r0)^(5/3)) with D/r0 = fwhm_lod / 0.98 (Fried 1966)."""
     nu = np.asarray(nu, dtype=float)
     return np.exp(-3.44 * (nu * float(fwhm_lod) / FWHM_PER_LAMBDA_R0) ** (5.0 / 3.0))
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

@@ -73,6 +73,7 @@ from planner.optics.limits import (
     lod_arcsec,
 )
 from planner.optics.seeing import kolmogorov_mtf, seeing_fwhm_arcsec
+from planner.units import wrap_public
 
 TABLE_FILE = "separability_table.npz"
 TABLE_VERSION = 1
@@ -482,3 +483,7 @@ def unequal_floor_lod(delta_mag, obstruction=0.0):
 if __name__ == "__main__":  # pragma: no cover
     d = write_shipped_table()
     print(f"wrote {shipped_table_path()} in {float(d['build_seconds']):.1f} s")
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

@@ -7,6 +7,7 @@ import warnings
 from dataclasses import dataclass, field
 
 from planner.errors import InputError
+from planner.units import convert_fields
 
 #: the apertures the tool accepts, mm (from small finders to the largest amateur instruments)
 APERTURE_MIN_MM = 10.0
@@ -54,6 +55,8 @@ class Telescope:
     chance_params: tuple = ()
 
     def __post_init__(self):
+        convert_fields(self)  # astropy Quantity fields (4 * u.imperial.inch) to the unit of their name
+
         def num(value, label, allowed):
             try:
                 v = float(value)

@@ -39,6 +39,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import wrap_public
 
 MM_PER_INCH = 25.4
 DEFAULT_EXTINCTION_K = 0.2   # mag per airmass, V (Schaefer 1985 via Green 1992, ICQ 14, 55)
@@ -152,3 +153,7 @@ def limiting_magnitude(aperture_mm, sky_mag_arcsec2=21.0, magnification=None, ai
     k = kw.get("extinction_k", DEFAULT_EXTINCTION_K)
     base = MAG_LIMIT_MODELS[key](aperture_mm, sky_mag_arcsec2, magnification)
     return base - k * (np.asarray(airmass, dtype=float) - 1.0)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

@@ -19,7 +19,7 @@ import pandas as pd
 from planner.errors import InputError
 from planner.optics.telescope import APERTURE_MAX_MM, APERTURE_MIN_MM, Telescope
 from planner.plan.model import NightRequest
-from planner.plan.night import judge_at_best, prepare
+from planner.plan.night import judge_scope, prepare
 from planner.plan.session import Session, parse_date, site_of
 
 
@@ -68,28 +68,44 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
         from planner.plan.observations import calibrate
 
         tels, calibrations = calibrate(tels, request.calibration)
+    # Over the nights: per pair, does each aperture split it on at least one night, and its best
+    # ranking score with each aperture (the night plan's own score, planner.plan.score); names and
+    # positions are kept from every night a pair was seen, so every pair counted has its name.
     split_any = None
-    table = None
+    best_score = None
+    names = None
+    info_cols = ["wds_id", "discoverer", "components", "rho_arcsec", "mag1", "mag2"]
     for d in dates:
         session = Session.from_request(dataclasses.replace(request, date=d), need_scopes=False)
         nt = prepare(session, catalog)
         catalog, table = nt.catalog, nt.table
         up = nt.up
-        cols = [(judge_at_best(tel, table, nt.vis, session.seeing_arcsec)["verdict"].astype(str).to_numpy()
-                 == "split") & up for tel in tels]
-        m = np.stack(cols, axis=1) if cols else np.zeros((len(table), 0), bool)
-        m = pd.DataFrame(m, index=table.index)
-        split_any = m if split_any is None else split_any.reindex(split_any.index.union(m.index), fill_value=False) | m.reindex(split_any.index.union(m.index), fill_value=False)
+        judged = [judge_scope(tel, table, nt.vis, session.seeing_arcsec, session.site.min_alt_deg) for tel in tels]
+        m = pd.DataFrame(np.stack([(j["verdict"].astype(str).to_numpy() == "split") & up for j in judged], axis=1)
+                         if judged else np.zeros((len(table), 0), bool), index=table.index)
+        sc = pd.DataFrame(np.stack([np.where(m.iloc[:, k].to_numpy(), j["score"].to_numpy(float), -np.inf)
+                                    for k, j in enumerate(judged)], axis=1)
+                          if judged else np.zeros((len(table), 0)), index=table.index)
+        if split_any is None:
+            split_any, best_score, names = m, sc, table[info_cols]
+        else:
+            idx = split_any.index.union(m.index)
+            split_any = split_any.reindex(idx, fill_value=False) | m.reindex(idx, fill_value=False)
+            best_score = np.maximum(best_score.reindex(idx, fill_value=-np.inf), sc.reindex(idx, fill_value=-np.inf))
+            names = names.combine_first(table[info_cols]).reindex(idx)
     seeing, origin = session.seeing_arcsec, session.seeing_origin
     mat = split_any.to_numpy(bool)
+    scores = best_score.to_numpy(float)
     counts = mat.sum(axis=0)
-    names = table.reindex(split_any.index)
+    names = names.reindex(split_any.index)
+    label = (names["discoverer"].astype(str) + " " + names["components"].astype(str)).str.strip().to_numpy()
     rows = []
     prev = np.zeros(len(mat), bool)
     for k, a in enumerate(aps):
-        new = mat[:, k] & ~prev
-        label = (names["discoverer"].astype(str) + " " + names["components"].astype(str)).str.strip().to_numpy()
-        rows.append({"aperture_mm": a, "n_split": int(counts[k]), "n_added": int(new.sum()),
+        new = np.flatnonzero(mat[:, k] & ~prev)
+        # most interesting first: the night plan's ranking score with this aperture, best night
+        new = new[np.argsort(-scores[new, k], kind="stable")]
+        rows.append({"aperture_mm": a, "n_split": int(counts[k]), "n_added": int(new.size),
                      "added": [str(x) for x in label[new]]})
         prev = mat[:, k]
     any_k = mat.any(axis=1)
@@ -98,21 +114,21 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
                           "components": names["components"].to_numpy(),
                           "rho_arcsec": names["rho_arcsec"].to_numpy(float),
                           "first_aperture_mm": first}, index=split_any.index)[any_k]
-    return {"dates": dates, "seeing_arcsec": seeing, "seeing_origin": origin, "obstruction": obstruction,
+    s_ = session.site
+    site_label = (f"{request.site_name} ({s_.lat_deg:.2f}, {s_.lon_deg:.2f})" if request.site_name
+                  else f"{s_.lat_deg:.2f}, {s_.lon_deg:.2f}")
+    return {"dates": dates, "site": site_label, "seeing_arcsec": seeing, "seeing_origin": origin, "obstruction": obstruction,
             "table": pd.DataFrame(rows), "pairs": pairs.sort_values("first_aperture_mm", kind="stable"),
             "calibrations": calibrations}
 
 
-def plot_counts(result: dict, path) -> None:
-    """Count of split pairs versus aperture (matplotlib; PNG, SVG or PDF by extension)."""
-    import io
-
+def counts_figure(result: dict):
+    """The matplotlib figure of :func:`plot_counts`: pairs split against aperture, the y axis from
+    zero (a count), the site and the dates in the title."""
     import matplotlib
 
     matplotlib.use("Agg", force=False)
     import matplotlib.pyplot as plt
-
-    from planner.config.storage import atomic_write_bytes
 
     t = result["table"]
     fig, ax = plt.subplots(figsize=(6.4, 4.0), dpi=110)
@@ -121,11 +137,27 @@ def plot_counts(result: dict, path) -> None:
         ax.annotate(str(n), (a, n), textcoords="offset points", xytext=(0, 6), ha="center", fontsize=8)
     ax.set_xlabel("clear aperture [mm]")
     ax.set_ylabel("pairs split")
+    top = float(t["n_split"].max()) if len(t) else 1.0
+    ax.set_ylim(0, max(1.0, top) * 1.12)
     d = result["dates"]
     span = d[0] if len(d) == 1 else f"{d[0]} to {d[-1]} ({len(d)} nights)"
-    ax.set_title(f"Pairs within reach, {span}, seeing {result['seeing_arcsec']:.2g}\"", fontsize=10)
+    site = result.get("site") or ""
+    ax.set_title(f"Pairs within reach{' at ' + site if site else ''}\n{span}, seeing {result['seeing_arcsec']:.2g}\"",
+                 fontsize=10)
     ax.grid(alpha=0.3)
     fig.tight_layout()
+    return fig
+
+
+def plot_counts(result: dict, path) -> None:
+    """Count of split pairs versus aperture (matplotlib; PNG, SVG or PDF by extension)."""
+    import io
+
+    import matplotlib.pyplot as plt
+
+    from planner.config.storage import atomic_write_bytes
+
+    fig = counts_figure(result)
     buf = io.BytesIO()
     ext = str(path).rsplit(".", 1)[-1].lower()
     fig.savefig(buf, format=ext if ext in ("png", "svg", "pdf") else "png")

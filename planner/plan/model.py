@@ -43,6 +43,7 @@ class NightRequest:
     min_alt_deg: float | None = None  # overrides the site's
     filters: dict = field(default_factory=dict)
     share_margin: float = 1.5         # club sharing: "comfortable" margin
+    wide_factor: float | None = None  # close-double ceiling in Dawes limits (None: default 40, 0: none)
     calibration: str | None = None    # "mine": the chance curve fitted to the observation log
 
     def to_dict(self) -> dict:

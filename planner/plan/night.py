@@ -40,7 +40,7 @@ from planner.plan.score import score_pairs
 from planner.plan.session import Session
 from planner.sky.atmosphere import airmass
 from planner.sky.night import sun_alt_deg, sun_sep_deg
-from planner.sky.placement import FastAltAz, alt_az_at, visibility
+from planner.sky.placement import FastAltAz, conditions_at, visibility
 from planner.verdict import judge
 
 #: at most this many best-ranked pairs enter the scheduler per section
@@ -173,8 +173,8 @@ def judge_scope(tel: Telescope, table: pd.DataFrame, vis: pd.DataFrame, seeing: 
 REJUDGE_AIRMASS = np.geomspace(1.0, 10.0, 25)
 
 
-def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float):
-    """Feasibility at a slot: still split at the slot's airmass.
+def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float, site=None, accept=("split",)):
+    """Feasibility at a slot: still split (a verdict in ``accept``) at the slot's airmass.
 
     Every candidate is judged once, in one vectorised call, at the airmasses of
     :data:`REJUDGE_AIRMASS`; the largest airmass up to which it splits at every
@@ -182,12 +182,26 @@ def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float):
     within it.  The required separation grows and the companion fades with
     airmass, so the verdict is monotone; the grid makes the test slightly
     conservative (a pair is never scheduled where it would not split).  The
-    rows finally shown are judged again at their slot's own airmass."""
+    judgement reads what the verdict at the best time read: the pair's sky
+    brightness (from its best time) and the atmospheric dispersion at each grid
+    airmass (altitude from the plane-parallel airmass, asin(1/X), a grid-level
+    approximation).  The rows finally shown are judged again at their slot's
+    own instant (:func:`_finish_rows`), and a row is shown in the section its
+    verdict there belongs to (:func:`_consistent_sections`)."""
     n, k = len(cand), len(REJUDGE_AIRMASS)
     small = cand[["rho_arcsec", "mag1", "mag2"]].reset_index(drop=True)  # what the verdict reads
     rep = small.iloc[np.repeat(np.arange(n), k)]
-    v = judge_rows(tel, rep, seeing, np.tile(REJUDGE_AIRMASS, n))
-    ok = (v["verdict"].to_numpy() == "split").reshape(n, k)
+    kw = {}
+    if "sky_mag_arcsec2" in cand:
+        kw["sky_mag"] = np.repeat(cand["sky_mag_arcsec2"].to_numpy(float), k)
+    if site is not None:
+        from planner.sky.atmosphere import dispersion_arcsec
+
+        alt_grid = np.degrees(np.arcsin(1.0 / REJUDGE_AIRMASS))
+        kw["dispersion_arcsec"] = np.tile(np.asarray(dispersion_arcsec(alt_grid, pressure_hpa=site.pressure_hpa,
+                                                                       temperature_c=site.temperature_c), float), n)
+    v = judge_rows(tel, rep, seeing, np.tile(REJUDGE_AIRMASS, n), **kw)
+    ok = np.isin(v["verdict"].astype(str).to_numpy(), list(accept)).reshape(n, k)
     n_ok = np.logical_and.accumulate(ok, axis=1).sum(axis=1)
     x_max = np.where(n_ok > 0, REJUDGE_AIRMASS[np.maximum(n_ok - 1, 0)], 0.0)
 
@@ -195,6 +209,79 @@ def _rejudge_fn(tel, cand: pd.DataFrame, seeing: float):
         return np.asarray(airmass(np.maximum(alt_deg, 1.0)), float) <= x_max[idx]
 
     return fn
+
+
+def _consistent_sections(parts: list) -> pd.DataFrame:
+    """One pair, one verdict: each scheduled row goes in the section its verdict at its own slot
+    belongs to (``plan`` when it splits there, ``challenge`` otherwise), whichever list put it in
+    the schedule; rows in time order within a section, numbered from 1.  The index (the
+    candidates' labels) is kept."""
+    if not parts:
+        return empty_schedule()
+    sched = pd.concat(parts)
+    sched["section"] = np.where(sched["verdict"].astype(str) == "split", "plan", "challenge")
+    order = {"plan": 0, "challenge": 1}
+    sched = sched.assign(_o=sched["section"].map(order)).sort_values(["_o", "slot_start_utc"], kind="stable")
+    sched = sched.drop(columns="_o")
+    sched["slot"] = sched.groupby("section").cumcount().to_numpy() + 1
+    return sched
+
+
+#: why a candidate is not in the schedule (the ``plan_status`` column of a scope's candidates)
+STATUS_SCHEDULED = "scheduled"
+STATUS_SCHEDULED_NEAR = "scheduled as a near miss"
+STATUS_NOT_UP = "not up in the dark for one slot"
+STATUS_NO_DARK = "no dark window on this date"
+STATUS_TOO_WIDE = "wider than the close-double ceiling"
+STATUS_NO_SLOT = "no free slot near its best time"
+STATUS_NEAR = "near miss (shown with --challenges)"
+STATUS_OTHER_SCOPE = "on another telescope's share"
+
+
+def plan_status(j: pd.DataFrame, sched: pd.DataFrame, cut_by_limit, limit, challenges: bool,
+                shared_out=None) -> pd.Series:
+    """Per candidate, what became of it tonight: scheduled (in which section) or why not --
+    not up in the dark, the verdict's reason when it does not split, a near miss without
+    --challenges, beyond --limit, on another telescope's share, or no free slot near its best
+    time (every slot while it was near its best altitude was taken by a better-ranked pair)."""
+    verdict = j["verdict"].astype(str).to_numpy()
+    up = j["up"].to_numpy(bool)
+    reason = j["reason"]
+    if isinstance(reason, pd.DataFrame):  # the geometry's note is also called 'reason'; the verdict's is last
+        reason = reason.iloc[:, -1]
+    st = np.full(len(j), STATUS_NO_SLOT, dtype=object)
+    st[verdict == "challenge"] = STATUS_NO_SLOT if challenges else STATUS_NEAR
+    no = verdict == "no"
+    st[no] = np.char.add("does not split: ", reason.astype(str).to_numpy()[no].astype(str)).astype(object)
+    if shared_out is not None:
+        st[j.index.isin(shared_out)] = STATUS_OTHER_SCOPE
+    if "too_wide" in j:
+        st[j["too_wide"].to_numpy(bool)] = STATUS_TOO_WIDE
+    st[j.index.isin(list(cut_by_limit))] = f"beyond --limit {limit}"
+    st[~up] = STATUS_NOT_UP
+    if len(sched):
+        sec = sched["section"].astype(str).to_numpy()
+        st[j.index.isin(sched.index[sec == "plan"])] = STATUS_SCHEDULED
+        st[j.index.isin(sched.index[sec != "plan"])] = STATUS_SCHEDULED_NEAR
+    return pd.Series(st, index=j.index, dtype=object)
+
+
+def count_summary(j: pd.DataFrame, status: pd.Series, when: str, club_share: int | None = None,
+                  challenges: bool = False) -> str:
+    """The scope's header line: how many pairs split, how many are scheduled, why the rest are not."""
+    splits = (j["verdict"].astype(str) == "split") & j["up"].astype(bool)
+    near = (j["verdict"].astype(str) == "challenge") & j["up"].astype(bool)
+    n_sched = int((status == STATUS_SCHEDULED).sum())
+    head = f"{int(splits.sum())} pairs split {when}, {int(near.sum())} near misses"
+    if club_share is not None:
+        head += f"; {club_share} of the splits on this telescope's share"
+    head += f"; {n_sched} scheduled"
+    if challenges:
+        head += f" + {int((status == STATUS_SCHEDULED_NEAR).sum())} near misses"
+    why = status[splits & (status != STATUS_SCHEDULED) & (status != STATUS_SCHEDULED_NEAR)].value_counts()
+    if len(why):
+        head += "; not scheduled: " + ", ".join(f"{n} {w}" for w, n in why.items())
+    return head
 
 
 def empty_schedule() -> pd.DataFrame:
@@ -212,25 +299,38 @@ class Section:
     name: str                        # "plan" or "challenge"
     busy: list | None = None
     rejudge: bool = True
+    accept: tuple = ("split",)       # verdicts a slot must give to be feasible
 
 
 def _schedule_section(session: Session, cand: pd.DataFrame, sec: Section) -> pd.DataFrame:
     if len(cand) == 0 or sec.limit <= 0:
         return empty_schedule()
     site, window = session.site, sec.window
+    # The schedule is built for the whole observing window and only then cut to the limit: the
+    # pairs shown with --limit 5 are the first five of the full window's schedule, never a
+    # different (and worse-placed) choice.
+    fill = _window_slots(window, session.minutes)
     pool = cand.sort_values("score", ascending=False, kind="stable").head(POOL_SIZE)
     altaz_fn = FastAltAz(pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), site,
                          window[0] + (window[1] - window[0]) // 2)
-    feas = _rejudge_fn(sec.tel, pool, session.seeing_arcsec) if sec.rejudge else None
+    feas = _rejudge_fn(sec.tel, pool, session.seeing_arcsec, site, sec.accept) if sec.rejudge else None
     sched = greedy_schedule(
         pool["ra_deg"].to_numpy(float), pool["dec_deg"].to_numpy(float), pool["score"].to_numpy(float),
         _as_ns(pool["best_utc"]), _as_ns(pool["set_utc"]) if "set_utc" in pool else None,
         window[0], window[1], minutes=session.minutes, altaz_fn=altaz_fn, min_alt_deg=site.min_alt_deg,
-        limit=sec.limit, busy=sec.busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
+        limit=min(fill, int(sec.limit)), busy=sec.busy, feasible_fn=feas, alt_best_deg=_geometric_best_alt(pool))
     if len(sched) == 0:
         return empty_schedule()
-    rows = pool.iloc[sched["cand"].to_numpy()].reset_index(drop=True)
-    return _finish_rows(session, sec, rows, sched)
+    rows = pool.iloc[sched["cand"].to_numpy()]
+    out = _finish_rows(session, sec, rows.reset_index(drop=True), sched)
+    out.index = rows.index  # the candidates' labels, for the per-pair status
+    return out
+
+
+def _window_slots(window, minutes: float) -> int:
+    """How many slots of ``minutes`` the observing window holds (at least one)."""
+    span_min = (np.datetime64(window[1], "ns") - np.datetime64(window[0], "ns")).astype("int64") / 60e9
+    return max(1, int(span_min // float(minutes)))
 
 
 def add_names(catalog, sched: pd.DataFrame) -> pd.DataFrame:
@@ -256,8 +356,7 @@ def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
     then fill the gaps the main list leaves)."""
     if request.limit is not None:
         return max(1, int(request.limit) // 2) if challenge else int(request.limit)
-    span_min = (np.datetime64(window[1], "ns") - np.datetime64(window[0], "ns")).astype("int64") / 60e9
-    return max(1, int(span_min // float(request.minutes)))
+    return _window_slots(window, request.minutes)
 
 
 def _geometric_best_alt(pool: pd.DataFrame) -> np.ndarray:
@@ -282,9 +381,13 @@ def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.D
     """Schedule rows: position, airmass and verdict at each slot's start."""
     site, tel = session.site, sec.tel
     t0 = sched["slot_start_utc"].to_numpy("datetime64[ns]")
-    alt, az = alt_az_at(rows["ra_deg"].to_numpy(float), rows["dec_deg"].to_numpy(float), site, t0)
+    # the slot's own conditions, by the same models as the verdict at the best time
+    cond = conditions_at(rows["ra_deg"].to_numpy(float), rows["dec_deg"].to_numpy(float), site,
+                         session.night, t0)
+    alt, az = cond["alt_deg"], cond["az_deg"]
     x = np.asarray(airmass(np.asarray(alt, float)), float)
-    v = judge_rows(tel, rows, session.seeing_arcsec, x).reset_index(drop=True)
+    v = judge_rows(tel, rows, session.seeing_arcsec, x, sky_mag=cond["sky_mag_arcsec2"],
+                   dispersion_arcsec=cond["dispersion_arcsec"]).reset_index(drop=True)
     out = pd.DataFrame({
         "section": sec.name,
         "slot": np.arange(1, len(rows) + 1),
@@ -373,7 +476,9 @@ def prepare(session: Session, catalog=None) -> NightTable:
     # every listed pair stays, so the plan can say which of them are not placed tonight.
     pos_ok = np.isfinite(pairs["ra_deg"].to_numpy(float)) & np.isfinite(pairs["dec_deg"].to_numpy(float))
     placed = pairs[pos_ok]
-    vis = visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site, night)
+    # candidates are chosen for the observing window (the dark window cut to --start/--end)
+    vis = visibility(placed["ra_deg"].to_numpy(float), placed["dec_deg"].to_numpy(float), site,
+                     session.window_night)
     vis = vis.reset_index(drop=True)
     vis.index = placed.index
     up = vis["observable"].to_numpy(bool) & (vis["up_dark_min"].to_numpy(float) >= session.minutes)
@@ -390,6 +495,31 @@ def prepare(session: Session, catalog=None) -> NightTable:
     table = table[np.isfinite(table["rho_arcsec"].to_numpy(float))]
     table = apply_filters(table, request.filters, cat)
     return NightTable(table=table, vis=vis.loc[table.index], catalog=cat, epoch=epoch, minutes=session.minutes)
+
+
+#: default close-double ceiling: pairs wider than this many Dawes limits of the telescope are not
+#: scheduled for it (project choice, common practice, no source: at 40 x Dawes a pair is split at
+#: the lowest power and says nothing about the telescope; 45" for 102 mm, 23" for 203 mm).
+#: ``NightRequest.wide_factor`` overrides it (0: no ceiling); ``--sep-max`` and a target list
+#: replace it.
+WIDE_FACTOR = 40.0
+
+
+def wide_ceiling_arcsec(request: NightRequest, tel: Telescope) -> float | None:
+    """The separation above which a pair is too wide for a close-double plan with ``tel``, or None.
+
+    ``WIDE_FACTOR`` (or the request's ``wide_factor``) times the Dawes limit (Dawes 1867,
+    115.8"/D[mm]) of the telescope.  None when the observer set a separation ceiling
+    (``sep_max_arcsec``), gave a target list, or asked for none (``wide_factor = 0``)."""
+    from planner.optics.limits import dawes_limit_arcsec
+
+    f = request.filters or {}
+    factor = WIDE_FACTOR if request.wide_factor is None else float(request.wide_factor)
+    if factor < 0:
+        raise InputError(f"wide_factor {factor:g} must be 0 (no ceiling) or more")
+    if factor == 0 or f.get("sep_max_arcsec") is not None or f.get("targets"):
+        return None
+    return factor * float(dawes_limit_arcsec(float(tel.aperture_mm)))
 
 
 @dataclass(frozen=True)
@@ -435,8 +565,10 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         ninfo = session.night_info
         plan.notes.append(str(ninfo.get("note") or ninfo.get("status") or "no dark window on this date"))
         for js in judged:
-            plan.scopes.append(ScopePlan(name=js.name, telescope=dict(js.spec), candidates=js.table,
-                                         schedule=empty_schedule()))
+            plan.scopes.append(ScopePlan(name=js.name, telescope=dict(js.spec),
+                                         candidates=js.table.assign(plan_status=STATUS_NO_DARK),
+                                         schedule=empty_schedule(),
+                                         summary="nothing to schedule: no dark window on this date"))
         return plan
     window = session.window()
     assign = None
@@ -445,29 +577,42 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         chal_assign = club.share_challenges(judged)
     for js in judged:
         j, name = js.table, js.name
-        split = j[(j["verdict"] == "split") & j["up"]]
-        chal = j[(j["verdict"] == "challenge") & j["up"]]
+        ceiling = wide_ceiling_arcsec(request, js.telescope)
+        wide = (j["rho_arcsec"].to_numpy(float) > ceiling) if ceiling is not None else np.zeros(len(j), bool)
+        j = j.assign(too_wide=wide)
+        if wide.any():
+            plan.notes.append(f"{name}: pairs wider than {ceiling:.0f}\" are not scheduled, as too easy for a "
+                              f"close-double list ({WIDE_FACTOR if request.wide_factor is None else request.wide_factor:g}"
+                              " x the Dawes limit; --sep-max or wide_factor in a plan file sets another ceiling)")
+        split = j[(j["verdict"] == "split") & j["up"] & ~j["too_wide"]]
+        chal = j[(j["verdict"] == "challenge") & j["up"] & ~j["too_wide"]]
         if assign is not None:
             split = split[split.index.isin(assign.get(name, []))]
             chal = chal[chal.index.isin(chal_assign.get(name, []))]
-        main = _schedule_section(session, split, Section(js.telescope, window, _slot_limit(request, window), "plan"))
+        fill = _window_slots(window, session.minutes)
+        main_full = _schedule_section(session, split, Section(js.telescope, window, fill, "plan"))
+        lim = _slot_limit(request, window)
+        main, cut = main_full.head(lim), list(main_full.index[lim:])
         parts = [main]
         if request.challenges and len(chal):
             busy = list(zip(main["slot_start_utc"], main["slot_end_utc"])) if len(main) else []
-            extra = _schedule_section(session, chal, Section(js.telescope, window,
-                                                             _slot_limit(request, window, challenge=True),
-                                                             "challenge", busy=busy, rejudge=False))
-            parts.append(extra)
-        sched = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(len(p) for p in parts) \
-            else empty_schedule()
-        sched = add_names(cat, sched)
+            extra = _schedule_section(session, chal, Section(js.telescope, window, fill, "challenge", busy=busy,
+                                                             accept=("split", "challenge")))
+            lim_c = _slot_limit(request, window, challenge=True)
+            cut += list(extra.index[lim_c:])
+            parts.append(extra.head(lim_c))
+        sched = _consistent_sections([p for p in parts if len(p)])
+        shared_out = None
+        if assign is not None:
+            shared_out = j.index[~j.index.isin(assign.get(name, [])) & ~j.index.isin(chal_assign.get(name, []))]
+        j = j.assign(plan_status=plan_status(j, sched, cut, request.limit, request.challenges, shared_out))
+        sched = add_names(cat, sched.reset_index(drop=True))
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
-        if assign is None:
-            summary = f"{n_all} pairs split tonight, {n_near} near misses"
-        else:
-            summary = (f"splits {n_all} pairs tonight; {len(split)} of them are on its share of the club list"
-                       + (f", plus {len(chal)} near misses" if request.challenges else ""))
+        when = "tonight" if not (request.start_local or request.end_local) else (
+            f"from {session.site.format_local(window[0], '%H:%M')} to {session.site.format_local(window[1], '%H:%M')}")
+        summary = count_summary(j, j["plan_status"], when, None if assign is None else len(split),
+                                request.challenges)
         plan.scopes.append(ScopePlan(name=name, telescope=dict(js.spec), candidates=j, schedule=sched,
                                      n_split=n_all, n_challenge=n_near, summary=summary))
     return plan

@@ -38,6 +38,7 @@ class Session:
     seeing_arcsec: float
     seeing_origin: str
     calibrations: tuple = ()         # (scope name, Calibration) when request.calibration == "mine"
+    window_utc: tuple | None = None   # the observing window (dark window cut to --start/--end), UTC
 
     @property
     def local_date(self) -> str:
@@ -71,6 +72,11 @@ class Session:
         info = night_summary(night, site)
         info["local_date"] = local_date
         telescopes = tuple(Telescope.from_mapping(sd, scope_name(sd)) for sd in request.scopes)
+        window = None
+        if night.has_dark:
+            # computed once, so '--start now' is one instant for the whole plan
+            window = session_window(info, site, local_date, request.start_local, request.end_local)
+            info["window_start_utc"], info["window_end_utc"] = window
         calibrations = ()
         if request.calibration is not None:
             from planner.plan.observations import calibrate
@@ -78,12 +84,26 @@ class Session:
             telescopes, calibrations = calibrate(telescopes, request.calibration)
         return cls(request=dataclasses.replace(request, date=local_date), site=site, telescopes=telescopes,
                    night=night, night_info=info, seeing_arcsec=seeing, seeing_origin=seeing_origin,
-                   calibrations=calibrations)
+                   calibrations=calibrations, window_utc=window)
 
     def window(self):
-        """The dark window (two UTC ``datetime64[ns]``), cut to the optional HH:MM start and end."""
-        r = self.request
-        return session_window(self.night_info, self.site, r.date, r.start_local, r.end_local)
+        """The observing window (two UTC ``datetime64[ns]``): the dark window cut to the optional
+        HH:MM (or ``now``) start and end."""
+        if self.window_utc is None:
+            raise InputError(f"no dark window on {self.local_date} at this site")
+        return self.window_utc
+
+    @property
+    def window_night(self) -> Night:
+        """The night with its dark window cut to the observing window: visibility, best time and
+        altitude computed on it are those inside the window, so candidates are chosen for it."""
+        if self.window_utc is None:
+            return self.night
+        a, b = self.window_utc
+        if a == _ns(self.night.dark_start_utc) and b == _ns(self.night.dark_end_utc):
+            return self.night
+        return dataclasses.replace(self.night, dark_start_utc=np.datetime64(a, "ns"),
+                                   dark_end_utc=np.datetime64(b, "ns"))
 
 
 def site_of(request: NightRequest) -> Site:
@@ -121,9 +141,14 @@ def resolve_seeing(request: NightRequest):
     return 2.0, "2\" FWHM (default; give --seeing or --steadiness)"
 
 
+def now_utc() -> np.datetime64:
+    """The current instant, UTC (one place, so tests can fix the clock)."""
+    return np.datetime64(_dt.datetime.now(_dt.timezone.utc).replace(tzinfo=None), "ns")
+
+
 def tonight(site: Site) -> str:
     """Local date of tonight's evening at the site (before noon: last night)."""
-    now = _dt.datetime.now(site.zone)
+    now = pd.Timestamp(now_utc()).tz_localize("UTC").to_pydatetime().astimezone(site.zone)
     if now.hour < 12:
         now = now - _dt.timedelta(days=1)
     return now.date().isoformat()
@@ -166,30 +191,43 @@ def _ns(t) -> np.datetime64:
     return np.datetime64(ts.to_datetime64(), "ns")
 
 
-def session_window(ninfo: dict, site: Site, local_date: str, start_local, end_local):
-    """The dark window, cut to the observer's optional HH:MM start and end."""
+def local_clock_utc(hhmm: str, site: Site, local_date: str, now=None) -> np.datetime64:
+    """The UTC instant of an HH:MM local clock time on the night of ``local_date``.
+
+    Times before noon are the next calendar morning.  ``"now"`` is the current
+    instant (``now`` when given, else :func:`now_utc`)."""
+    if str(hhmm).strip().lower() == "now":
+        return _ns(now if now is not None else now_utc())
+    try:
+        h, m = (int(x) for x in str(hhmm).split(":"))
+        ok = 0 <= h < 24 and 0 <= m < 60
+    except ValueError:
+        ok = False
+    if not ok:
+        raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock) or 'now'")
+    day = _dt.date.fromisoformat(local_date)
+    if h < 12:  # after midnight: the next calendar day
+        day = day + _dt.timedelta(days=1)
+    local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
+    return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
+
+
+def session_window(ninfo: dict, site: Site, local_date: str, start_local, end_local, now=None):
+    """The dark window, cut to the observer's optional HH:MM (or ``now``) start and end."""
     a = _ns(ninfo["dark_start_utc"])
     b = _ns(ninfo["dark_end_utc"])
-
-    def at(hhmm: str):
-        try:
-            h, m = (int(x) for x in str(hhmm).split(":"))
-            ok = 0 <= h < 24 and 0 <= m < 60
-        except ValueError:
-            ok = False
-        if not ok:
-            raise InputError(f"time {hhmm!r} is not HH:MM (24-hour local clock)")
-        day = _dt.date.fromisoformat(local_date)
-        if h < 12:  # after midnight: the next calendar day
-            day = day + _dt.timedelta(days=1)
-        local = _dt.datetime(day.year, day.month, day.day, h, m, tzinfo=site.zone)
-        return np.datetime64(local.astimezone(_dt.timezone.utc).replace(tzinfo=None), "ns")
-
-    if start_local:
-        a = max(a, at(start_local))
-    if end_local:
-        b = min(b, at(end_local))
-    if start_local and end_local and at(start_local) >= at(end_local):
+    t_start = local_clock_utc(start_local, site, local_date, now) if start_local else None
+    t_end = local_clock_utc(end_local, site, local_date, now) if end_local else None
+    if t_start is not None and t_end is not None and t_start >= t_end:
         raise InputError(f"--start {start_local} is not before --end {end_local} (evening times before "
                          "midnight, morning times after)")
+    if t_start is not None:
+        a = max(a, t_start)
+    if t_end is not None:
+        b = min(b, t_end)
+    if a >= b:
+        dark = (f"{site.format_local(ninfo['dark_start_utc'], '%H:%M')}-"
+                f"{site.format_local(ninfo['dark_end_utc'], '%H:%M')}")
+        raise InputError(f"the chosen times (start {start_local or 'dark'}, end {end_local or 'dawn'}) leave no "
+                         f"time inside the night's dark window ({dark} local on {local_date})")
     return a, b

@@ -26,9 +26,10 @@ from planner.errors import InputError
 from planner.motion import pair_geometry
 from planner.optics.telescope import Telescope
 from planner.plan.model import DARKNESS
-from planner.plan.night import CAUTIONS, judge_at_best
+from planner.plan.night import CAUTIONS, judge_at_best, judge_rows
 from planner.plan.session import parse_date
-from planner.sky.night import night_for
+from planner.sky.atmosphere import airmass
+from planner.sky.night import DARKNESS_LEVELS, night_for
 from planner.sky.placement import visibility
 from planner.sky.site import Site
 from planner.utc import iso_utc
@@ -36,21 +37,67 @@ from planner.utc import iso_utc
 
 def sun_ra_deg(jd) -> np.ndarray:
     """Apparent right ascension of the Sun (deg), low-precision formula (Astronomical Almanac, sec. C)."""
+    return sun_radec_deg(jd)[0]
+
+
+def sun_radec_deg(jd):
+    """Apparent right ascension and declination of the Sun (deg), low-precision formulae of the
+    *Astronomical Almanac* (section C; about 0.01 deg, 1950-2050)."""
     n = np.asarray(jd, float) - 2451545.0
     L = (280.460 + 0.9856474 * n) % 360.0
     g = np.radians((357.528 + 0.9856003 * n) % 360.0)
     lam = np.radians(L + 1.915 * np.sin(g) + 0.020 * np.sin(2 * g))
     eps = np.radians(23.439 - 0.0000004 * n)
-    return np.degrees(np.arctan2(np.cos(eps) * np.sin(lam), np.cos(lam))) % 360.0
+    ra = np.degrees(np.arctan2(np.cos(eps) * np.sin(lam), np.cos(lam))) % 360.0
+    dec = np.degrees(np.arcsin(np.sin(eps) * np.sin(lam)))
+    return ra, dec
 
 
-def best_dates(ra_deg: float, dec_deg: float, lat_deg: float, around, season_hours: float = 3.0) -> dict:
+def _alt_deg(ra_deg, dec_deg, lat_deg, lst_deg):
+    ha = np.radians(lst_deg - ra_deg)
+    phi, d = np.radians(lat_deg), np.radians(dec_deg)
+    return np.degrees(np.arcsin(np.clip(np.sin(phi) * np.sin(d) + np.cos(phi) * np.cos(d) * np.cos(ha), -1, 1)))
+
+
+def dark_up_minutes(ra_deg: float, dec_deg: float, lat_deg: float, lon_deg: float, days_ordinal,
+                    sun_limit_deg: float, min_alt_deg: float, step_min: float = 5.0) -> np.ndarray:
+    """Minutes, per evening, during which the target is above ``min_alt_deg`` while the Sun is
+    below ``sun_limit_deg`` (local mean noon to the next noon), vectorised over the dates.
+
+    Sun from the *Astronomical Almanac* low-precision formulae (:func:`sun_radec_deg`); sidereal
+    time from the GMST formula of Meeus (1998, *Astronomical Algorithms*, eq. 12.4); the target's
+    J2000 place is used without precession (a fraction of a degree, i.e. well under a day in the
+    dates), no refraction and no horizon profile.  Sampled every ``step_min`` minutes: good to a
+    step, ample for choosing the dates of a season."""
+    days = np.asarray(days_ordinal, int)
+    frac = np.arange(0.0, 1.0, step_min / 1440.0)
+    # local mean noon of each date, as a Julian date (UT)
+    jd0 = days - _dt.date(2000, 1, 1).toordinal() + 2451545.0 - float(lon_deg) / 360.0
+    jd = jd0[:, None] + frac[None, :]
+    gmst = (280.46061837 + 360.98564736629 * (jd - 2451545.0)) % 360.0
+    lst = gmst + float(lon_deg)
+    sra, sdec = sun_radec_deg(jd)
+    dark = _alt_deg(sra, sdec, lat_deg, lst) < sun_limit_deg
+    up = _alt_deg(float(ra_deg), float(dec_deg), lat_deg, lst) >= min_alt_deg
+    return (dark & up).sum(axis=1) * float(step_min)
+
+
+def best_dates(ra_deg: float, dec_deg: float, lat_deg: float, around, season_hours: float = 3.0, *,
+               lon_deg: float | None = None, sun_limit_deg: float = -12.0, min_alt_deg: float = 20.0,
+               minutes: float = 10.0) -> dict:
     """The nearest date on which the pair transits at local midnight, and the good season around it.
 
     ``around``: the evening's date (``datetime.date``, ISO text, or a year as int, meaning
     1 July of that year).  The year-long window centred on it holds exactly one midnight
     transit, so the answer is the nearest one (this season, whether just past or to come),
     and the season is given with its real years even when it spans New Year.
+
+    With the site's longitude (``lon_deg``) the season also respects darkness: a date is in it
+    only when the pair is above ``min_alt_deg`` for at least ``minutes`` while the Sun is below
+    ``sun_limit_deg`` (:func:`dark_up_minutes`).  When no date near the midnight transit is dark
+    enough (high latitudes in summer) the season is the run of dates around the one on which the
+    pair is up longest in the dark, where it is up at least half as long; ``season_basis``
+    says which rule gave the dates and ``note`` says why the midnight transit is not usable.
     """
     if isinstance(around, int):
         around = _dt.date(around, 7, 1)
@@ -62,18 +109,45 @@ def best_dates(ra_deg: float, dec_deg: float, lat_deg: float, around, season_hou
     anti = (sun_ra_deg(jd) + 180.0) % 360.0
     off_h = ((ra_deg - anti + 180.0) % 360.0 - 180.0) / 15.0  # transit minus midnight, hours
     k = pad + int(np.argmin(np.abs(off_h[pad:-pad])))
-    good = np.abs(off_h) <= season_hours
+    near = np.abs(off_h) <= season_hours
     max_alt = 90.0 - abs(lat_deg - dec_deg)
 
     def d(o):
         return _dt.date.fromordinal(int(o)).isoformat()
 
-    a, b = _run_around(good, k)
-    return {"midnight_transit": d(days[k]),
-            "good_from": d(days[a]) if good[k] else None,
-            "good_to": d(days[b]) if good[k] else None,
-            "season_hours": season_hours, "max_alt_deg": float(max_alt),
-            "ever_up": bool(max_alt > 0)}
+    out = {"midnight_transit": d(days[k]), "good_from": None, "good_to": None,
+           "season_hours": season_hours, "max_alt_deg": float(max_alt), "ever_up": bool(max_alt > 0),
+           "season_basis": f"transit within {season_hours:g} h of midnight", "note": ""}
+    if lon_deg is None:
+        if near[k]:
+            a, b = _run_around(near, k)
+            out["good_from"], out["good_to"] = d(days[a]), d(days[b])
+        return out
+    up_min = dark_up_minutes(ra_deg, dec_deg, lat_deg, lon_deg, days, sun_limit_deg, min_alt_deg)
+    out["dark_up_min_at_transit"] = float(up_min[k])
+    good = near & (up_min >= minutes)
+    centre = np.arange(len(days))
+    inside = (centre >= pad) & (centre < len(days) - pad)
+    if not good[k]:
+        out["note"] = (f"at its midnight transit ({d(days[k])}) it is not above {min_alt_deg:g} deg for "
+                       f"{minutes:g} min in the dark (Sun below {sun_limit_deg:g} deg)")
+    if good[k] or (good & inside).any():
+        kk = k if good[k] else int(np.flatnonzero(good & inside)[np.argmin(np.abs(np.flatnonzero(good & inside) - k))])
+        a, b = _run_around(good, kk)
+    elif ((up_min >= minutes) & inside).any():
+        inner = np.where(inside, up_min, -1.0)
+        top = float(inner.max())
+        cand = np.flatnonzero(inner == top)
+        kk = int(cand[np.argmin(np.abs(cand - k))])
+        a, b = _run_around((up_min >= max(minutes, 0.5 * top)), kk)
+        out["season_basis"] = (f"up longest in the dark ({top:.0f} min above {min_alt_deg:g} deg on "
+                               f"{d(days[kk])}; dates with at least half as long)")
+    else:
+        out["note"] = (f"never above {min_alt_deg:g} deg for {minutes:g} min while the Sun is below "
+                       f"{sun_limit_deg:g} deg, on any date of the year from this site")
+        return out
+    out["good_from"], out["good_to"] = d(days[a]), d(days[b])
+    return out
 
 
 def _run_around(mask: np.ndarray, k: int) -> tuple[int, int]:
@@ -156,10 +230,38 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
     table = pd.concat([row, geo], axis=1)
     ra, dec = float(row["ra_deg"].iloc[0]), float(row["dec_deg"].iloc[0])
     vis = visibility(np.array([ra]), np.array([dec]), site, night).reset_index(drop=True)
-    v = judge_at_best(tel, table.reset_index(drop=True), vis, float(seeing_arcsec)).iloc[0]
     g = table.iloc[0]
     vis0 = vis.iloc[0]
     up_ok = bool(vis0["observable"]) and float(vis0["up_dark_min"]) >= minutes
+    max_alt = 90.0 - abs(site.lat_deg - dec)
+    if up_ok:
+        # the verdict tonight: at the best time inside the dark window
+        v = judge_at_best(tel, table.reset_index(drop=True), vis, float(seeing_arcsec)).iloc[0]
+        basis = "at its best time tonight"
+        judged_alt = float(vis0["alt_best_deg"])
+    else:
+        # Not observable tonight: the optical verdict alone, at the pair's highest altitude (upper
+        # transit) on a dark night, so "will not split" is never said of a pair that merely is
+        # not up; dark-sky brightness and no dispersion term (it is a statement about the optics).
+        judged_alt = max_alt if max_alt > 0 else 90.0
+        x = airmass(np.array([max(judged_alt, 1.0)]))
+        basis = (f"optics alone, at its highest altitude ({max_alt:.0f} deg, at transit) on a dark night"
+                 if max_alt > 0 else "optics alone (it never rises here; judged overhead)")
+        v = judge_rows(tel, table.reset_index(drop=True), float(seeing_arcsec), x).iloc[0]
+    if not night.has_dark:
+        sky_state = "no-dark"
+        low = getattr(night, "sun_min_alt_deg", None)
+        sky_text = (f"not observable tonight: no dark window (the Sun stays above {_darkness_deg(darkness):g} deg, "
+                    f"{darkness} darkness" + (f"; lowest {low:.1f} deg)" if low is not None else ")"))
+    elif not up_ok:
+        sky_state = "not-up"
+        sky_text = (f"not up in the dark tonight: above {site.min_alt_deg:g} deg for "
+                    f"{float(np.nan_to_num(vis0['up_dark_min'])):.0f} min of the dark window "
+                    f"(needs {minutes:g} min)")
+    else:
+        sky_state = "up"
+        sky_text = (f"up in the dark tonight for {float(vis0['up_dark_min']):.0f} min above "
+                    f"{site.min_alt_deg:g} deg")
 
     def num(val):
         try:
@@ -184,12 +286,18 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
         "best_local": site.format_local(vis0["best_utc"]) if not pd.isna(vis0["best_utc"]) else None,
         "alt_best_deg": num(vis0["alt_best_deg"]), "airmass_best": num(vis0["airmass_best"]),
         "up_dark_min": num(vis0["up_dark_min"]), "observable": up_ok,
-        "best_dates": best_dates(ra, dec, site.lat_deg, date),
+        "sky_state": sky_state, "sky_text": sky_text,
+        "verdict_basis": basis, "verdict_alt_deg": num(judged_alt),
+        "best_dates": best_dates(ra, dec, site.lat_deg, date, lon_deg=site.lon_deg,
+                                 sun_limit_deg=_darkness_deg(darkness), min_alt_deg=site.min_alt_deg,
+                                 minutes=minutes),
         "cautions": list(CAUTIONS[:2]),
     }
     if cal_used is not None:
         out["calibration"] = cal_used.header()
-    if not up_ok:
-        out["reason"] = (out["reason"] + "; " if out["reason"] else "") + \
-            f"not above {site.min_alt_deg:g} deg for {minutes:g} min in tonight's dark window"
     return out
+
+
+def _darkness_deg(darkness: str) -> float:
+    """Sun altitude (deg) of a darkness level (the sky engine's table)."""
+    return float(DARKNESS_LEVELS[darkness][0])

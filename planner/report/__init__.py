@@ -28,4 +28,23 @@ def write_report(plan, path) -> str:
     return fmt
 
 
-__all__ = ["write_report", "FORMATS"]
+#: formats that can go to standard output (``--out -``)
+STREAM_FORMATS = ("csv", "json", "votable")
+
+
+def report_text(plan, fmt: str) -> str:
+    """The plan in a machine format (csv, json, votable) as text, e.g. for standard output."""
+    from planner.errors import InputError
+
+    if fmt not in STREAM_FORMATS:
+        raise InputError(f"format {fmt!r}: use one of {', '.join(STREAM_FORMATS)}")
+    from planner.report import exports
+
+    if fmt == "csv":
+        return exports.csv_text(plan)
+    if fmt == "json":
+        return exports.plan_json(plan) + "\n"
+    return exports.votable_bytes(plan).decode("utf-8")  # astropy writes UTF-8 XML
+
+
+__all__ = ["write_report", "report_text", "FORMATS", "STREAM_FORMATS"]

@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 
 from planner.config.storage import atomic_write_bytes, atomic_write_text
+from planner.report.angles import dec_text, ra_text
 from planner.report.safe import csv_cell, terminal_text
 from planner.utc import iso_utc
 
@@ -65,16 +66,40 @@ def _machine_frame(schedule: pd.DataFrame) -> pd.DataFrame:
     return df
 
 
-def write_csv(plan, path) -> None:
-    df = _machine_frame(plan.schedule)
+def with_sexagesimal(df: pd.DataFrame) -> pd.DataFrame:
+    """``df`` with ``ra_hms`` and ``dec_dms`` (``18:05:27.24``, ``+02:30:09.1``) after ``dec_deg``."""
+    if "ra_deg" not in df or "dec_deg" not in df:
+        return df
+    df = df.copy()
+    at = list(df.columns).index("dec_deg") + 1
+    df.insert(at, "ra_hms", [ra_text(v, precision=2, sep=":") for v in df["ra_deg"]])
+    df.insert(at + 1, "dec_dms", [dec_text(v, precision=1, sep=":") for v in df["dec_deg"]])
+    return df
+
+
+def csv_text(plan) -> str:
+    """The schedule as CSV: UTC times in ISO 8601, numbers at full precision (the shortest
+    text that reads back to the same float), RA and Dec also sexagesimal.  Like every text
+    cell, a declination starting with a sign gets the spreadsheet text mark ``'``
+    (:func:`planner.report.safe.csv_cell`), so no spreadsheet reads it as a formula."""
+    df = with_sexagesimal(_machine_frame(plan.schedule))
     for c in df.columns:
         if df[c].dtype == object or pd.api.types.is_string_dtype(df[c]):
             df[c] = [csv_cell(v) if isinstance(v, str) else v for v in df[c]]
-    atomic_write_text(path, df.to_csv(index=False, float_format="%.6g"))
+    return df.to_csv(index=False)
+
+
+def write_csv(plan, path) -> None:
+    atomic_write_text(path, csv_text(plan))
 
 
 def write_votable(plan, path) -> None:
     """VOTable (IVOA standard) via astropy, with units and the plan's inputs as PARAMs."""
+    atomic_write_bytes(path, votable_bytes(plan))
+
+
+def votable_bytes(plan) -> bytes:
+    """The schedule as a VOTable document (bytes), with units."""
     import io
 
     from astropy.io.votable import from_table
@@ -103,7 +128,7 @@ def write_votable(plan, path) -> None:
                        f"catalogue: {plan.catalog_source}")
     buf = io.BytesIO()
     vot.to_xml(buf)
-    atomic_write_bytes(path, buf.getvalue())
+    return buf.getvalue()
 
 
 def write_html(plan, path) -> None:
@@ -199,7 +224,9 @@ def render_text(plan) -> str:
                    + (f" - {sp.summary}" if sp.summary else ""))
         sched = sp.schedule
         if sched is None or len(sched) == 0:
-            out.append("   nothing to schedule (no pair splits and stays up long enough in the dark window)")
+            out.append("   nothing to schedule" + (" (no pair splits and stays up long enough in the dark window)"
+                                                    if "not scheduled" not in sp.summary and "nothing" not in sp.summary
+                                                    else ""))
             continue
         main = sched[sched["section"] == "plan"]
         chal = sched[sched["section"] == "challenge"]

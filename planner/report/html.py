@@ -12,6 +12,7 @@ import base64
 import pandas as pd
 
 from planner.report import charts
+from planner.report.angles import dec_text, ra_text
 from planner.report.exports import fmt_num, local_hm, scope_label
 from planner.report.safe import html_text as E
 
@@ -59,6 +60,14 @@ def _png(fig) -> str:
     return "data:image/png;base64," + base64.b64encode(charts.figure_png(fig)).decode("ascii")
 
 
+def _radec(ra_deg, dec_deg) -> str:
+    """RA and Dec, sexagesimal and in degrees: ``18h05m27.2s +02°30′09″ (271.3634°, +2.5024°)``."""
+    if _f(ra_deg, ".4f") == "-":
+        return ""
+    dms = dec_text(dec_deg).replace("d", "°", 1).replace("m", "′", 1).replace("s", "″", 1)
+    return E(f"{ra_text(ra_deg)} {dms} ({_f(ra_deg, '.4f')}°, {_f(dec_deg, '+.4f')}°)")
+
+
 def _rows(plan, sched: pd.DataFrame) -> str:
     out = []
     for r in sched.itertuples(index=False):
@@ -71,7 +80,8 @@ def _rows(plan, sched: pd.DataFrame) -> str:
             f'<td class="n">{E(r.slot_local)}–{E(local_hm(plan, r.slot_end_utc))}{flag}</td>'
             f'<td><span class="pair">{E(r.discoverer)} {E(r.components)}</span>'
             + (f' <span class="star">{E(r.name)}</span>' if getattr(r, "name", "") else "")
-            + f'<br><span class="sub">WDS {E(r.wds_id)} · {E(r.constellation)}</span></td>'
+            + f'<br><span class="sub">WDS {E(r.wds_id)} · {E(r.constellation)}</span><br>'
+            f'<span class="sub">{_radec(r.ra_deg, r.dec_deg)}</span></td>'
             f'<td class="n">{_f(r.rho_arcsec, ".2f")}″<br><span class="sub">{_f(r.theta_deg, ".0f")}°</span></td>'
             f"<td>{E(how)}</td>"
             f'<td class="n">{_f(r.mag1, ".1f")} / {_f(r.mag2, ".1f")}<br><span class="sub">Δm {_f(r.dm, ".1f")}</span></td>'

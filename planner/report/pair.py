@@ -11,6 +11,7 @@ import datetime as dt
 from pathlib import Path
 
 from planner.motion.epochs import calendar_date_from_jd
+from planner.report.angles import dec_text, ra_text
 
 def _f(v, fmt: str, missing: str = "-") -> str:
     return missing if v is None else format(v, fmt)
@@ -67,9 +68,12 @@ def render_report(rep: dict) -> str:
             meas += f": {last['rho_arcsec']:.1f}\" at {_f(last['theta_deg'], '.0f')} deg"
         lines.append(f"last measure {meas} ({_f(rep['years_since_measure'], '.0f')} yr ago)")
     lines.append(f"note        {rep['reason']}")
-    lines.append(f"position    RA {rep['ra_date_deg']:.4f} deg, Dec {rep['dec_date_deg']:+.4f} deg"
-                 " (J2000 axes, proper motion to the date)" if rep["ra_date_deg"] is not None else
-                 "position    unknown")
+    if rep["ra_date_deg"] is not None:
+        lines.append(f"position    RA {ra_text(rep['ra_date_deg'])} = {rep['ra_date_deg']:.4f} deg,"
+                     f" Dec {dec_text(rep['dec_date_deg'])} = {rep['dec_date_deg']:+.4f} deg"
+                     " (J2000 axes, proper motion to the date)")
+    else:
+        lines.append("position    unknown")
     return "\n".join(lines) + "\n"
 
 
@@ -107,14 +111,15 @@ def render_tonight(rep: dict) -> str:
     if rep["dark_start_utc"]:
         lines.append(f"dark window {_local(rep['dark_start_utc'], tz)} to {_local(rep['dark_end_utc'], tz)}"
                      f" ({rep['darkness']}, {tz})")
-    else:
-        lines.append(f"dark window none tonight ({rep['darkness']} darkness is not reached)")
     if rep["best_local"]:
         lines.append(f"best time   {rep['best_local']} ({tz}), altitude {_f(rep['alt_best_deg'], '.0f')} deg,"
                      f" airmass {_f(rep['airmass_best'], '.2f')}, {_f(rep['up_dark_min'], '.0f')} min up in the dark")
     verdict = _VERDICT_TEXT.get(rep["verdict"], rep["verdict"])
+    if rep.get("sky_text"):
+        lines.append(f"sky         {rep['sky_text']}")
     if not rep["observable"]:
-        verdict = f"not well placed tonight; at its best time it {verdict}"
+        # not up is not "will not split": the optical verdict alone, said as such
+        verdict = f"{rep.get('verdict_basis') or 'at its best time'}: it {verdict}"
     lines.append(f"verdict     {verdict}: limit {_f(rep['limit_arcsec'], '.2f')}\", margin x{_f(rep['margin'], '.2f')},"
                  f" chance {_f(None if rep['chance'] is None else 100 * rep['chance'], '.0f')}%")
     lines.append(f"why         {rep['reason']}")
@@ -122,9 +127,12 @@ def render_tonight(rep: dict) -> str:
         lines.append(f"power       {_f(rep['power_min'], '.0f')}x to {_f(rep['power_max'], '.0f')}x")
     b = rep["best_dates"]
     if b["ever_up"]:
-        season = f"{b['good_from']} to {b['good_to']}" if b["good_from"] else "-"
+        season = f"{b['good_from']} to {b['good_to']}" if b["good_from"] else "none"
+        basis = b.get("season_basis") or f"transit within {b['season_hours']:g} h of midnight"
         lines.append(f"best dates  transits at midnight on {b['midnight_transit']}; good season {season}"
-                     f" (transit within {b['season_hours']:g} h of midnight), highest {b['max_alt_deg']:.0f} deg")
+                     f" ({basis}), highest {b['max_alt_deg']:.0f} deg")
+        if b.get("note"):
+            lines.append(f"            {b['note']}")
     else:
         lines.append("best dates  never rises at this latitude")
     for c in rep["cautions"]:

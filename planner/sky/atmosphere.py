@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import wrap_public
 
 __all__ = [
     "AIRMASS_MODELS",
@@ -345,3 +346,7 @@ def twilight_sky_mag(sun_alt_deg):
         excess = 10.0 ** (-0.4 * m) - 10.0 ** (-0.4 * m_night)
         return np.where(excess > 0.0, -2.5 * np.log10(np.where(excess > 0, excess, 1.0)),
                         np.inf)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

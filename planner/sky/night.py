@@ -30,6 +30,7 @@ import numpy as np
 from planner.errors import InputError
 from planner.sky._astrometry import NS_PER_DAY, to_utc64
 from planner.sky.site import Site
+from planner.units import wrap_public
 
 __all__ = ["Night", "night_for", "DARKNESS_LEVELS", "sun_alt_deg", "sun_sep_deg", "moon_position"]
 
@@ -382,3 +383,7 @@ def night_for(site: Site, local_date, darkness: str = "nautical") -> Night:
         moon_ra_deg=moon["ra_deg"], moon_dec_deg=moon["dec_deg"], moon_illum=moon["illum"],
         moon_phase_angle_deg=moon["phase_angle_deg"],
     )
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

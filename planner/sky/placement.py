@@ -47,6 +47,7 @@ from planner.sky import atmosphere as atm
 from planner.sky._astrometry import OMEGA_RAD_S, altaz_rad, astrom_at, to_utc64, validate_radec
 from planner.sky.night import Night, sun_alt_deg
 from planner.sky.site import Site
+from planner.units import wrap_public
 
 __all__ = ["visibility", "alt_az_at", "VISIBILITY_COLUMNS", "apparent_place", "FastAltAz"]
 
@@ -126,6 +127,32 @@ def alt_az_at(ra_deg, dec_deg, site: Site, when_utc, refracted: bool = False):
     if refracted:
         alt_deg = atm.apparent_from_true_deg(alt_deg, site.pressure_hpa, site.temperature_c)
     return alt_deg, az_deg
+
+
+def conditions_at(ra_deg, dec_deg, site: Site, night: Night, when_utc, *, band_nm=atm.VISUAL_BAND_NM):
+    """What the verdict reads about the sky, for targets at given instants (one instant per target).
+
+    The same quantities, by the same models, that :func:`visibility` gives at each target's best
+    time, so a pair judged at another instant (a schedule slot) is judged the same way:
+    ``alt_deg`` (geometric), ``az_deg``, ``dispersion_arcsec`` (Filippenko 1982 at the apparent
+    altitude, Saemundsson 1986 refraction) and ``sky_mag_arcsec2`` (dark sky, twilight and
+    moonlight, as :func:`visibility`).  Returns a dict of arrays."""
+    ra, dec = validate_radec(np.asarray(ra_deg, float).ravel(), np.asarray(dec_deg, float).ravel())
+    when = to_utc64(np.asarray(when_utc, "datetime64[ns]")).ravel()
+    alt, az = alt_az_at(ra, dec, site, when)
+    P, T = site.pressure_hpa, site.temperature_c
+    refr = np.where(alt >= -1.0, atm.refraction_saemundsson1986(alt, P, T), np.nan)
+    alt_app = alt + np.nan_to_num(refr) / 60.0
+    disp = atm.dispersion_arcsec(alt_app, band_nm, P, T)
+    moon = night.moon_at(when)
+    mx, my, mz = moon["xyz"]
+    px, py, pz = _unit(np.radians(ra), np.radians(dec))
+    dot = px * mx + py * my + pz * mz
+    cross = np.sqrt((py * mz - pz * my) ** 2 + (pz * mx - px * mz) ** 2 + (px * my - py * mx) ** 2)
+    moon_sep = np.degrees(np.arctan2(cross, dot))
+    sky = _sky_mag(site, night, when, alt, moon, moon_sep)
+    return {"alt_deg": np.asarray(alt, float), "az_deg": np.asarray(az, float),
+            "dispersion_arcsec": np.asarray(disp, float), "sky_mag_arcsec2": np.asarray(sky, float)}
 
 
 def _alt_az_fast(sd, cd, sphi, cphi, ha):
@@ -481,3 +508,7 @@ def _sky_mag(site: Site, night: Night, best64, alt_true_deg, moon, moon_sep):
         b_tw = 0.0
     out = atm.mag_from_nl(b_dark + b_moon + b_tw)
     return np.where(alt_true_deg >= 0.0, out, np.nan)
+
+
+# every public function above accepts astropy Quantity arguments (planner.units)
+wrap_public(globals())

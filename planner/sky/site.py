@@ -29,6 +29,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from planner.errors import InputError
+from planner.units import convert_fields
 
 __all__ = ["Site", "Horizon"]
 
@@ -144,6 +145,7 @@ class Site:
     _zone: object = field(default=None, init=False, repr=False, compare=False)
 
     def __post_init__(self):
+        convert_fields(self)  # astropy Quantity fields (52 * u.deg, 95 * u.m) to the unit of their name
         set_ = object.__setattr__
         set_(self, "lat_deg", _num("latitude", self.lat_deg, -90.0, 90.0, "deg (north positive)"))
         lon = _num("longitude", self.lon_deg, -180.0, 360.0, "deg east (or 0 to 360)")
