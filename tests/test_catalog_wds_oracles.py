@@ -194,10 +194,10 @@ def test_wds_separation_columns_do_not_overlap_neighbours():
     assert (row["sep_first_arcsec"], row["sep_last_arcsec"], row["mag1"]) == (111.1, 222.2, 33.33)
 
 
-@pytest.mark.parametrize("col", [23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98])
+@pytest.mark.parametrize("col", [23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98, 107, 112])
 def test_wds_separator_columns_are_not_part_of_any_number(col):
-    # published layout: single blank separators at 23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98
-    # (FORMATS A / wdsweb_format.txt).  They belong to no field, so a digit typed into one
+    # published layout: single blank separators at 23, 28, 33, 38, 42, 46, 52, 58, 80, 89, 98,
+    # 107 and 112 (FORMATS A / wdsweb_format.txt).  They belong to no field, so a digit typed into one
     # of them is ignored: the line is still read, with the same numbers.
     line = _wds_rows()[1]
     assert line[col - 1] == " "
@@ -209,3 +209,45 @@ def test_wds_separator_columns_are_not_part_of_any_number(col):
     row = got.iloc[0]
     for key in [*WDS_NUMERIC, "mag1", "mag2"]:
         assert same(row[key], base[key]), (col, key)
+    for key in ("wds_id", "discoverer", "components", "spectral_type", "dm_id", "note_flags"):
+        assert row[key] == base[key], (col, key)
+
+
+def test_wds_text_after_column_130_is_ignored():
+    # the WDS summary line is 130 columns (wdsweb_format.txt); the genuine rows carry a
+    # constellation after it.  Whatever follows column 130 -- even a byte that is not ASCII
+    # -- does not stop the line from being read, nor change it.
+    line = _wds_rows()[0][:130].encode()
+    df = parse_wds_lines([line + b" Cep", line + b"\xe9\x01 junk", line])
+    assert list(df["line_no"]) == [1.0, 2.0, 3.0], df.attrs["problems"]
+    for key in WDS_NUMERIC:
+        assert len({*df[key].astype(str)}) == 1, key
+
+
+def test_wds_line_holding_only_id_and_discoverer():
+    # id (1-10) and discoverer (11-17) are the minimum the reader documents: a 17-column line
+    # is read (every other field missing), a 16-column one is refused with its reason
+    full = _wds_rows()[0]
+    df = parse_wds_lines([full[:17].encode(), full[:16].encode()])
+    assert list(df["line_no"]) == [1.0]
+    assert df.iloc[0]["wds_id"] == full[:10] and np.isnan(df.iloc[0]["sep_last_arcsec"])
+    assert df.attrs["problems"] == [(2, "line too short to hold the WDS id and discoverer (17 columns)")]
+
+
+def test_wds_blank_lines_of_any_length_up_to_130_are_skipped_silently():
+    # documented in planner/catalogs/wds.py: blank lines are skipped (not reported); a full
+    # 130-column blank line is still a blank line
+    line = _wds_rows()[0][:130].encode()
+    df = parse_wds_lines([line, b"", b" " * 17, b" " * 130, line])
+    assert list(df["line_no"]) == [1.0, 5.0] and df.attrs["problems"] == []
+
+
+def test_wds_component_and_note_codes_lose_inner_blanks():
+    # components (18-22) and note codes (108-111) are codes, read without blanks
+    # (planner/catalogs/wds.py docstring); spectral type and DM number keep single blanks
+    line = wds_line(id=((1, 10), "12000+1000"), disc=((11, 17), "STF1234"),
+                    comp=((18, 22), "A  BC"), sp=((71, 79), "G8 III  "), dm=((99, 106), "+10 2345"),
+                    notes=((108, 111), "N  X"))
+    row = parse_wds_lines([line.encode()]).iloc[0]
+    assert (row["components"], row["note_flags"]) == ("ABC", "NX")
+    assert (row["spectral_type"], row["dm_id"]) == ("G8 III", "+10 2345")

@@ -30,6 +30,10 @@ def test_verdict_70_oph_from_a_southern_site_in_june(cli):
     # rho from the orbit (ORB6 Pbx2000b), far above the Dawes limit of 102 mm (1.14", Dawes 1867)
     assert t["rho_arcsec"] == pytest.approx(rep["rho_arcsec"], abs=0.01)
     assert t["margin"] == pytest.approx(t["rho_arcsec"] / t["limit_arcsec"], rel=1e-6)
+    # the limit tonight is never below the Dawes limit of the aperture (4.56"/inch, Dawes 1867:
+    # 1.136" at 102 mm), and 70 Oph (about 5-6" in the 2020s, ORB6) is well above it
+    assert t["limit_arcsec"] >= 4.56 * 25.4 / 102 - 1e-9
+    assert t["rho_arcsec"] > 2 * 4.56 * 25.4 / 102
 
     from astropy import units as u
     from astropy.coordinates import AltAz, EarthLocation, SkyCoord
