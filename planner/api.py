@@ -149,6 +149,42 @@ def write_report(plan, path):
     return _write(plan, path)
 
 
+# -- the observation log (docs/log.md) ------------------------------------------------------
+
+def record_observation(logbook, query, *, site, telescope, when=None, seeing_arcsec=None, steadiness=None,
+                       power=None, result, note="", site_name="", scope_name="", catalog="sample"):
+    """Add one attempt to ``logbook`` (a :class:`planner.config.logbook.Logbook`) with the
+    circumstances computed for that moment; see :func:`planner.plan.observations.record`."""
+    from planner.plan.observations import record
+
+    return record(logbook, query=query, site=site, telescope=telescope, when=when, seeing_arcsec=seeing_arcsec,
+                  steadiness=steadiness, power=power, result=result, note=note, site_name=site_name,
+                  scope_name=scope_name, catalog=catalog)
+
+
+def record_observations(logbook, items, **kw):
+    """Several attempts with one telescope at one site; see :func:`planner.plan.observations.record_many`."""
+    from planner.plan.observations import record_many
+
+    return record_many(logbook, items, **kw)
+
+
+def fit_observations(logbook, per_scope=True, store=True):
+    """Fit the split curve to the log (per telescope and pooled) and keep the fits in it;
+    see :mod:`planner.plan.calibration`."""
+    from planner.plan.observations import fit_and_store
+
+    return fit_and_store(logbook, per_scope=per_scope, store=store)
+
+
+def reliability_table(entries, calibration):
+    """Observed split fraction against the chance given beforehand; see
+    :func:`planner.plan.calibration.reliability_table`."""
+    from planner.plan.calibration import reliability_table as _table
+
+    return _table(entries, calibration)
+
+
 def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None,
                 others=()):
     """Everything known about one pair at one epoch, as a
@@ -199,6 +235,9 @@ _LAYERS = {
     # one pair
     "PairReport": "planner.plan.pair_report", "resolve_epoch": "planner.plan.pair_report",
     "parse_years": "planner.plan.pair_report",
+    # the observation log (docs/log.md)
+    "scope_key": "planner.plan.calibration", "Calibration": "planner.plan.calibration",
+    "last_attempts": "planner.plan.observations",
     # the local copy of the full catalogues (CDS VizieR)
     "fetch_vizier": "planner.catalogs.vizier:fetch", "import_catalog_files": "planner.catalogs.vizier:import_files",
     "vizier_snapshot": "planner.catalogs.vizier:current_snapshot",
@@ -217,4 +256,5 @@ def __getattr__(name):
     return getattr(importlib.import_module(mod), attr or name)
 
 
-__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report", "pair_report", *_LAYERS]
+__all__ = ["plan_night", "check_pair", "compare_apertures", "write_report", "pair_report", "record_observation",
+           "record_observations", "fit_observations", "reliability_table", *_LAYERS]

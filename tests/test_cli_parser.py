@@ -81,3 +81,12 @@ def test_interrupt_is_one_line_and_130(cli, monkeypatch):
     monkeypatch.setattr(pair_cmd.COMMAND, "run", interrupted)
     code, out, err = cli("pair", "STF2272")
     assert code == 130 and err.strip() == "splitplan: interrupted"
+
+
+@pytest.mark.parametrize("value", ["-1e6", "-2.5e3", "-.5", "-inf"])
+def test_negative_numbers_in_any_form_are_values(cli, value):
+    """'-1e6' after an option is a (bad) number to check, not an unknown option
+    ('--aperture needs a value' before: argparse only knew -1 and -1.5)."""
+    code, out, err = cli("night", "--lat", "52", "--lon", "0", "--tz", "UTC", "--date", "2026-12-05",
+                         "--aperture", value)
+    assert code == 2 and "needs a value" not in err and "aperture" in err and "10000 mm" in err

@@ -85,3 +85,48 @@ def test_pair_check_and_apertures_with_my_calibration():
     r1 = compare_apertures(request(calibration="mine"), [60, 102], nights=1)
     assert r0["calibrations"] == () and [n for n, _ in r1["calibrations"]] == ["60 mm", "102 mm"]
     assert (r1["table"]["n_split"].to_numpy() <= r0["table"]["n_split"].to_numpy()).all()
+
+
+def test_plans_read_the_log_done_skip_and_prefer_new():
+    from planner.plan.night import plan_night
+    from planner.plan.observations import record
+
+    plain = plan_night(request(limit=5))
+    first = plain.schedule.iloc[0]
+    assert "done" not in str(first["flag"])
+    with Logbook() as log:
+        record(log, query=f"{first['wds_id']} {first['components']}".strip(), site=SITE,
+               telescope={"aperture_mm": 102.0}, when=str(first["slot_start_utc"])[:19].replace(" ", "T") + "Z",
+               seeing_arcsec=1.5, result="clean")
+        # a failure with another telescope does not make it done for the 102 mm
+        record(log, query="STF2272", site=SITE, telescope={"aperture_mm": 60.0}, when="2026-07-01 22:30",
+               seeing_arcsec=1.5, result="clean")
+    marked = plan_night(request(limit=5))
+    row = marked.schedule[(marked.schedule["wds_id"] == first["wds_id"])
+                          & (marked.schedule["components"] == first["components"])]
+    assert len(row) == 1 and "done" in row["flag"].iloc[0]
+    assert any("already split in your log (marked done)" in n for n in marked.notes)
+    cand = marked.scopes[0].candidates
+    assert int(cand["done"].sum()) == 1
+    skipped = plan_night(request(limit=5, skip_done=True))
+    assert first["wds_id"] not in set(skipped.scopes[0].candidates.loc[
+        skipped.scopes[0].candidates["components"] == first["components"], "wds_id"])
+    newer = plan_night(request(limit=5, prefer_new=True)).scopes[0].candidates
+    key = cand["done"]
+    assert np.allclose(newer.loc[key[key].index, "score"], 0.5 * cand.loc[key[key].index, "score"])
+    untried = cand.index[~key][:20]
+    assert np.allclose(newer.loc[untried, "score"], cand.loc[untried, "score"])
+
+
+def test_a_damaged_log_does_not_stop_a_plan_unless_asked_for(_isolated_user_dirs):
+    from planner.errors import CorruptFileError
+    from planner.plan.night import plan_night
+
+    p = _isolated_user_dirs / "data" / "observations.sqlite3"
+    p.parent.mkdir(parents=True, exist_ok=True)
+    p.write_bytes(b"not a database" * 100)
+    plan = plan_night(request(limit=3))
+    assert any("observation log was not read" in n for n in plan.notes)
+    with pytest.raises(CorruptFileError):
+        plan_night(request(limit=3, skip_done=True))
+    assert p.read_bytes() == b"not a database" * 100

@@ -68,3 +68,20 @@ def test_other_commands_run(cli, tmp_path, monkeypatch, argv):
         argv = [*argv, "--date", "2026-12-05"]
     code, out, err = cli(*argv)
     assert code == 0, err
+
+
+def test_log_fit_on_the_invented_demo_log(cli, tmp_path, monkeypatch):
+    """The observation-log section: its import and fit run, and the lines shown are the real output."""
+    part = README.split("## Your own limit", 1)[1]
+    blocks = code_blocks(part)
+    cmds = [shlex.split(line.split("#", 1)[0])[1:] for line in blocks[0].splitlines()
+            if line.startswith("splitplan log ") and "log add" not in line]
+    assert [c[:2] for c in cmds] == [["log", "import"], ["log", "fit"]]
+    monkeypatch.chdir(tmp_path)
+    code, out, err = cli(*[str(ROOT / a) if a.startswith("examples/") else a for a in cmds[0]])
+    assert code == 0, err
+    code, out, err = cli(*cmds[1])
+    assert code == 0, err
+    real = out.splitlines()
+    for line in blocks[1].splitlines():
+        assert line in real, line

@@ -29,7 +29,7 @@ def command_tree() -> Group:
     """Every command, in the order of the help listing.  To add a command, write a
     module with ``arguments(parser)``, ``run(args)`` and a ``COMMAND`` (or a ``GROUP``)
     and list it here (see DEVELOPERS.md, "Adding a command or an option")."""
-    from planner.cli import apertures_cmd, catalog_cmd, completion_cmd, night_cmd, pair_cmd, profile_cmd
+    from planner.cli import apertures_cmd, catalog_cmd, completion_cmd, log_cmd, night_cmd, pair_cmd, profile_cmd
 
     return Group(PROG, help=HELP, flags=[(("--version",), "Show the version and exit.", _version)], children=[
         pair_cmd.COMMAND,
@@ -37,6 +37,7 @@ def command_tree() -> Group:
         apertures_cmd.COMMAND,
         catalog_cmd.GROUP,
         profile_cmd.GROUP,
+        log_cmd.GROUP,
         completion_cmd.COMMAND,
     ])
 

@@ -25,6 +25,7 @@ def arguments(p) -> None:
     g.add_argument("--obstruction", type=float, default=0.0, metavar="RATIO",
                    help="Central obstruction ratio for every aperture (default 0).")
     opt.air(g)
+    opt.add(g, "calibration")
     opt.catalog(g)
     g.add_argument("--minutes", type=float, metavar="MIN",
                    help="A pair must be up this long in the dark (default 10).")
@@ -60,7 +61,7 @@ def run(a) -> None:
     req = build_request(site=site, lat=lat, lon=lon, elevation=elevation, tz=tz, min_alt=min_alt, date=date,
                         aperture=[float(sizes[0])], obstruction=[obstruction], seeing=seeing,
                         steadiness=steadiness, darkness=darkness, catalog=catalog, minutes=minutes,
-                        mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only)
+                        mag_max=mag_max, dm_max=dm_max, orbits_only=orbits_only, calibration=a.calibration)
     res = compare_request(req, sizes, date_to=date_to, nights=nights)
     if opt.to_stdout(out):
         sys.stdout.write(APERTURE_FORMATS[out_fmt](res))

@@ -124,7 +124,8 @@ def import_(a) -> None:
           f"(use --catalog vizier)")
 
 
-GROUP = Group("catalog", help="The double-star and orbit catalogues the planner works from: look at them, "
+GROUP = Group("catalog", summary="The catalogues: what is loaded, download from CDS VizieR, import a file.",
+              help="The double-star and orbit catalogues the planner works from: look at them, "
                               "download the full ones from CDS VizieR, or bring in your own copy.", children=[
     Command("show", arguments=show_arguments, run=show,
             help="Say which catalogue is loaded, when it was copied, and what it holds."),

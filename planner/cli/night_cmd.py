@@ -20,7 +20,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
                   darkness=None, mag_max=None, mag2_max=None, dm_max=None, sep_min=None, sep_max=None,
                   constellation=None, ra_from=None, ra_to=None, orbits_only=False, targets=None,
                   catalog=None, minutes=None, limit=None, challenges=False, start=None, end=None,
-                  share_margin=None):
+                  share_margin=None, calibration=None, skip_done=False, prefer_new=False):
     """Turn command-line values into a :class:`planner.plan.model.NightRequest`."""
     from planner.config import profiles
     from planner.errors import InputError
@@ -101,6 +101,9 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
                        challenges=bool(challenges), start_local=start, end_local=end, filters=filters)
     if share_margin is not None:
         req.share_margin = share_margin
+    req.calibration = calibration
+    req.skip_done = True if skip_done else None
+    req.prefer_new = True if prefer_new else None
     return req
 
 
@@ -190,6 +193,12 @@ def arguments(p) -> None:
     s.add_argument("--end", metavar="HH:MM", help="Finish by this local time.")
     s.add_argument("--share-margin", type=float, metavar="MARGIN",
                    help="Club sharing: margin counted as comfortable (default 1.5).")
+    lg = p.add_argument_group("Your log")
+    opt.add(lg, "calibration")
+    lg.add_argument("--skip-done", action="store_true",
+                    help="Leave out pairs your observation log says this telescope has split.")
+    lg.add_argument("--prefer-new", action="store_true",
+                    help="Rank pairs never tried with this telescope first (tried ones score half).")
     o = p.add_argument_group("Output")
     o.add_argument("--json", dest="as_json", action="store_true",
                    help="Print a JSON array, one object per scheduled pair.")
@@ -206,7 +215,8 @@ def arguments(p) -> None:
 REQUEST_OPTIONS = ("site", "lat", "lon", "elevation", "tz", "min_alt", "date", "scope", "aperture",
                    "obstruction", "session", "seeing", "steadiness", "darkness", "mag_max", "mag2_max",
                    "dm_max", "sep_min", "sep_max", "constellation", "ra_from", "ra_to", "orbits_only",
-                   "targets", "catalog", "minutes", "limit", "challenges", "start", "end", "share_margin")
+                   "targets", "catalog", "minutes", "limit", "challenges", "start", "end", "share_margin",
+                   "calibration", "skip_done", "prefer_new")
 
 
 def run(a) -> None:

@@ -33,6 +33,9 @@ SHARED = {
     "steadiness": (("--steadiness",), dict(type=float, metavar="N",
                                            help="Steadiness 1-10 by eye, converted by the seeing table "
                                                 "(docs/plan.md).")),
+    "calibration": (("--calibration",), dict(metavar="MODEL", choices=("published", "mine"),
+                                             help="Chance curve: published (the model, default) or mine "
+                                                  "(fitted to your observation log by 'splitplan log fit').")),
     "darkness": (("--darkness",), dict(metavar="LEVEL",
                                        help="How dark the window must be: civil (Sun below -6 deg), "
                                             "nautical (-12, default) or astronomical (-18).")),

@@ -40,6 +40,7 @@ def arguments(p) -> None:
     opt.site(t)
     opt.telescope(t, many=False)
     opt.air(t)
+    opt.add(t, "calibration")
 
 
 def verdict_request(a):
@@ -51,7 +52,7 @@ def verdict_request(a):
 
     if not any(v for v in (a.site, a.lat, a.lon, a.scope, a.aperture)):
         if any(v is not None for v in (a.seeing, a.steadiness, a.darkness, a.obstruction, a.elevation,
-                                       a.tz, a.min_alt)):
+                                       a.tz, a.min_alt, a.calibration)):
             raise InputError("a verdict needs a site (--site or --lat/--lon/--tz) and a telescope "
                              "(--aperture or --scope)")
         return None
@@ -60,7 +61,8 @@ def verdict_request(a):
     opt.check_darkness(a.darkness)
     if a.scope and len(a.scope) > 1 or a.aperture and len(a.aperture) > 1:
         raise InputError("splitplan pair judges one telescope; use 'splitplan night' for several")
-    return build_request(**opt.site_values(a), **opt.scope_values(a), **opt.air_values(a), date=a.date)
+    return build_request(**opt.site_values(a), **opt.scope_values(a), **opt.air_values(a), date=a.date,
+                         calibration=a.calibration)
 
 
 def run(a) -> None:

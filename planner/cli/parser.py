@@ -72,6 +72,8 @@ class Parser(argparse.ArgumentParser):
                          allow_abbrev=False, formatter_class=HelpFormatter)
         self._positionals.title = "Arguments"
         self._optionals.title = "Options"
+        # a value such as -1e6, -.5 or -inf after an option is a number, not an unknown option
+        self._negative_number_matcher = re.compile(r"^-(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$|^-(inf|nan)$", re.I)
 
     def error(self, message: str):  # argparse calls this for every parsing error
         raise UsageError(_tidy(message), self.prog)
@@ -129,7 +131,8 @@ class Group:
 
     def format_help(self, path: str) -> str:
         width = help_width()
-        out = [f"usage: {path} [-h] COMMAND ...", ""]
+        flags = "".join(f" [{fl[0]}]" for fl, _, _ in self.flags)
+        out = [f"usage: {path} [-h]{flags} COMMAND ...", ""]
         out += textwrap.wrap(self.help, width) + [""]
         out.append("Commands:")
         pad = max(16, max(len(c.name) for c in self.children) + 4)

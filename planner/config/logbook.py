@@ -52,7 +52,6 @@ APPLICATION_ID = 0x53504C67
 SCHEMA_VERSION = 1
 #: seconds a writer waits for another process's transaction before giving up
 BUSY_TIMEOUT_S = 30.0
-FILE_NAME = "observations.sqlite3"
 
 #: the fixed result scale, best first, with what each word means
 RESULTS = {
@@ -147,9 +146,9 @@ MIGRATIONS: tuple = (_schema_v1,)
 
 def default_path() -> Path:
     """Where the log lives: ``observations.sqlite3`` in the user data directory."""
-    from planner.config.storage import user_dir
+    from planner.config.storage import log_path
 
-    return user_dir("data") / FILE_NAME
+    return log_path()
 
 
 def utc_now_text() -> str:

@@ -22,6 +22,8 @@ from pathlib import Path
 from planner.errors import PlannerError
 
 APP = "splitplan"
+#: the observation log's file in the user data directory (see planner.config.logbook)
+LOG_FILE_NAME = "observations.sqlite3"
 
 
 def user_dir(kind: str) -> Path:
@@ -40,6 +42,11 @@ def user_dir(kind: str) -> Path:
     except OSError as exc:
         raise PlannerError(f"cannot create the {kind} directory {path}: {exc.strerror}") from None
     return path
+
+
+def log_path() -> Path:
+    """Where the observation log lives (the file may not exist yet)."""
+    return user_dir("data") / LOG_FILE_NAME
 
 
 def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:

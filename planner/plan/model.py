@@ -45,6 +45,8 @@ class NightRequest:
     share_margin: float = 1.5         # club sharing: "comfortable" margin
     wide_factor: float | None = None  # close-double ceiling in Dawes limits (None: default 40, 0: none)
     calibration: str | None = None    # "mine": the chance curve fitted to the observation log
+    skip_done: bool | None = None     # leave out pairs the log says this scope has split
+    prefer_new: bool | None = None    # rank pairs never tried with this scope first
 
     def to_dict(self) -> dict:
         d = asdict(self)

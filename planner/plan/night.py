@@ -35,6 +35,7 @@ from planner.motion.epochs import to_epoch_yr
 from planner.optics.telescope import Telescope
 from planner.plan import club
 from planner.plan.model import SCHEDULE_COLUMNS, NightPlan, NightRequest, ScopePlan
+from planner.plan.observations import apply_log, flag_done
 from planner.plan.schedule import greedy_schedule
 from planner.plan.score import score_pairs
 from planner.plan.session import Session
@@ -561,6 +562,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         j = judge_scope(tel, table, vis, seeing, session.site.min_alt_deg)
         j["up"] = up
         judged.append(JudgedScope(telescope=tel, spec=sd, table=j))
+    judged = apply_log(judged, request, plan.notes)
     if not session.has_window:
         ninfo = session.night_info
         plan.notes.append(str(ninfo.get("note") or ninfo.get("status") or "no dark window on this date"))
@@ -606,7 +608,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         if assign is not None:
             shared_out = j.index[~j.index.isin(assign.get(name, [])) & ~j.index.isin(chal_assign.get(name, []))]
         j = j.assign(plan_status=plan_status(j, sched, cut, request.limit, request.challenges, shared_out))
-        sched = add_names(cat, sched.reset_index(drop=True))
+        sched = add_names(cat, flag_done(sched.reset_index(drop=True), j))
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
         when = "tonight" if not (request.start_local or request.end_local) else (

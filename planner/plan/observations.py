@@ -188,10 +188,11 @@ def calibrate(telescopes, mode: str | None, logbook=None):
         return tuple(telescopes), ()
     if mode != "mine":
         raise InputError(f"--calibration {mode!r} is not one of {', '.join(CALIBRATIONS)}")
-    from planner.config.logbook import Logbook, default_path
-
     if logbook is None:
-        if not default_path().exists():
+        from planner.config.logbook import Logbook
+        from planner.config.storage import log_path
+
+        if not log_path().exists():
             raise InputError("--calibration mine: there is no observation log yet; record attempts with "
                              "'splitplan log add' and fit them with 'splitplan log fit'")
         with Logbook() as log:
@@ -221,6 +222,82 @@ def done_pairs(logbook, telescope: dict, scope_name: str = "") -> set:
 def tried_pairs(logbook) -> set:
     """(wds_id, components) of every pair in the log, whatever the result."""
     return {(e["wds_id"], e["components"] or "") for e in logbook.entries()}
+
+
+def apply_log(judged: list, request, notes: list) -> list:
+    """The night plan reads the log: per telescope, mark the pairs already split with it
+    (column ``done``), leave them out (``request.skip_done``) or halve the score of every pair
+    already tried with it, so never-tried pairs come first (``request.prefer_new``).
+
+    Without a log nothing changes (and sqlite3 is not imported).  A log that cannot be read
+    is reported in ``notes`` and ignored, unless an option asked for it."""
+    import dataclasses
+
+    import numpy as np
+
+    from planner.config.storage import log_path
+    from planner.errors import PlannerError
+
+    asked = bool(getattr(request, "skip_done", None) or getattr(request, "prefer_new", None))
+    if not log_path().exists():
+        if asked:
+            notes.append("no observation log yet: nothing is done or tried (record attempts with 'splitplan log add')")
+        return judged
+    from planner.config.logbook import Logbook
+
+    try:
+        log = Logbook(create=False)
+    except PlannerError as exc:
+        if asked:
+            raise
+        notes.append(f"the observation log was not read: {exc}")
+        return judged
+    out = []
+    with log:
+        for js in judged:
+            tel = js.telescope
+            t = js.table
+            keys = list(zip(t["wds_id"].astype(str), t["components"].fillna("").astype(str).str.strip()))
+            spec = {"aperture_mm": tel.aperture_mm}
+            done = done_pairs(log, spec, tel.name)
+            is_done = np.array([k in done for k in keys], bool)
+            t = t.assign(done=is_done)
+            if request.prefer_new:
+                tried = {(e["wds_id"], e["components"] or "") for e in log.entries()
+                         if _entry_scope(e) == scope_key(spec, tel.name)}
+                was = np.array([k in tried for k in keys], bool)
+                t = t.assign(score=np.where(was, 0.5, 1.0) * t["score"].to_numpy(float))
+            n_done = int((is_done & t["up"].to_numpy(bool)).sum()) if "up" in t else int(is_done.sum())
+            if request.skip_done:
+                t = t[~is_done]
+            if n_done:
+                notes.append(f"{tel.name}: {n_done} pairs up tonight are already split in your log"
+                             + (" (left out)" if request.skip_done else " (marked done)"))
+            out.append(dataclasses.replace(js, table=t))
+    return out
+
+
+def _entry_scope(e: dict) -> str:
+    from planner.plan.calibration import scope_key as entry_key
+
+    return entry_key(e)
+
+
+def flag_done(sched, table):
+    """Add 'done' to the flag of scheduled pairs marked done in ``table`` (see :func:`apply_log`)."""
+    import numpy as np
+
+    if "done" not in table or sched is None or not len(sched):
+        return sched
+    done = {(str(w), str(c or "").strip()) for w, c in
+            zip(table.loc[table["done"], "wds_id"], table.loc[table["done"], "components"].fillna(""))}
+    if not done:
+        return sched
+    hit = np.array([(str(w), str(c or "").strip()) in done for w, c in
+                    zip(sched["wds_id"], sched["components"].fillna(""))], bool)
+    flag = sched["flag"].fillna("").astype(str).to_numpy()
+    new = np.where(hit, np.where(flag == "", "done", np.char.add(flag.astype(str), "; done")), flag)
+    return sched.assign(flag=new)
 
 
 def last_attempts(logbook, wds_id: str, components: str | None = None, n: int = 5) -> list[dict]:

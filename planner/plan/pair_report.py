@@ -45,6 +45,7 @@ class PairReport:
     tonight: dict | None = None
     orbit: pd.DataFrame | None = None
     precession: str = "j2000"
+    attempts: list | None = None     # the latest attempts in the observation log, newest first
 
     def to_dict(self) -> dict:
         """The JSON document: the geometry, with ``table`` and ``tonight`` when present."""
@@ -53,6 +54,8 @@ class PairReport:
             d["table"] = self.table
         if self.tonight is not None:
             d["tonight"] = self.tonight
+        if self.attempts:
+            d["log"] = self.attempts
         return d
 
 
@@ -179,7 +182,7 @@ def tonight_verdict(catalog, label, request) -> dict:
         raise InputError("splitplan pair judges one telescope; use 'splitplan night' for several")
     seeing_arcsec, seeing_origin = resolve_seeing(request)
     rep = check_pair(catalog, label, request.site, request.date, request.scopes[0], seeing_arcsec,
-                     darkness=request.darkness, minutes=request.minutes)
+                     darkness=request.darkness, minutes=request.minutes, calibration=request.calibration)
     rep["telescope"] = request.scopes[0]
     rep["tz"] = str(request.site.get("tz", "UTC")) if isinstance(request.site, dict) else "UTC"
     rep["seeing_arcsec"] = seeing_arcsec
@@ -200,4 +203,20 @@ def pair_report(catalog, label, epoch_yr: float, *, precession: str = "j2000", y
     tonight = tonight_verdict(catalog, label, request) if request is not None else None
     table = year_table(catalog, label, years, precession) if years is not None else None
     orbit = chosen_orbit(catalog, label, geometry["orbit_reference"] or "")
-    return PairReport(geometry=geometry, table=table, tonight=tonight, orbit=orbit, precession=precession)
+    attempts = logged_attempts(geometry["wds_id"], geometry["components"])
+    return PairReport(geometry=geometry, table=table, tonight=tonight, orbit=orbit, precession=precession,
+                      attempts=attempts)
+
+
+def logged_attempts(wds_id: str, components: str, n: int = 3) -> list[dict]:
+    """The latest ``n`` attempts at this pair in the observation log (none without a log;
+    sqlite3 is then not imported)."""
+    from planner.config.storage import log_path
+
+    if not log_path().exists():
+        return []
+    from planner.config.logbook import Logbook
+    from planner.plan.observations import last_attempts
+
+    with Logbook(create=False) as log:
+        return last_attempts(log, wds_id, (components or "").strip() or None, n=n)

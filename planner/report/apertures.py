@@ -35,8 +35,9 @@ def aperture_text(res) -> str:
     """The terminal table: pairs split per aperture and the first few each step adds."""
     d = res["dates"]
     span = d[0] if len(d) == 1 else f"{d[0]} .. {d[-1]} ({len(d)} nights sampled)"
-    lines = [f"Pairs split, {span}; seeing {res['seeing_origin']}; obstruction {res['obstruction']:.2f}",
-             f"{'aperture':>9} {'pairs':>6} {'added':>6}  first few added"]
+    lines = [f"Pairs split, {span}; seeing {res['seeing_origin']}; obstruction {res['obstruction']:.2f}"]
+    lines += [terminal_text(f"{name}: {cal.header()}") for name, cal in res.get("calibrations", ())]
+    lines.append(f"{'aperture':>9} {'pairs':>6} {'added':>6}  first few added")
     for r in res["table"].itertuples():
         few = terminal_text(", ".join(r.added[:6]) + (" ..." if len(r.added) > 6 else ""))
         lines.append(f"{r.aperture_mm:>6g} mm {r.n_split:>6} {r.n_added:>+6}  {few}")

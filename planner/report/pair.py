@@ -108,6 +108,8 @@ def render_tonight(rep: dict) -> str:
     if t.get("name") and t["name"] != f"{t.get('aperture_mm', 0):g} mm":
         tel = f"{t['name']} ({tel})"
     lines = ["", f"tonight     evening of {rep['date']} with {tel}, seeing {rep['seeing_origin']}"]
+    if rep.get("calibration"):
+        lines.append(f"chance      {rep['calibration']}")
     if rep["dark_start_utc"]:
         lines.append(f"dark window {_local(rep['dark_start_utc'], tz)} to {_local(rep['dark_end_utc'], tz)}"
                      f" ({rep['darkness']}, {tz})")
@@ -249,6 +251,21 @@ def render_text(report) -> str:
     text = render_report(report.geometry)
     if report.tonight is not None:
         text += render_tonight(report.tonight)
+    text += render_attempts(getattr(report, "attempts", None) or [])
     if report.table is not None:
         text += "\n" + render_table(report.table)
     return text
+
+
+def render_attempts(rows: list[dict]) -> str:
+    """The latest attempts at the pair in the observation log (docs/log.md), newest first."""
+    if not rows:
+        return ""
+    lines = [""]
+    for k, e in enumerate(rows):
+        head = "your log    " if k == 0 else " " * 12
+        scope = e.get("scope") or f"{e['aperture_mm']:g} mm"
+        margin = "-" if e.get("margin") is None else format(e["margin"], ".2f")
+        note = f" ({e['note']})" if e.get("note") else ""
+        lines.append(f"{head}{_local(e['when_utc'], e['tz'])}: {e['result']} with {scope}, margin {margin}{note}")
+    return "\n".join(lines) + "\n"
