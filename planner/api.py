@@ -216,7 +216,7 @@ _LAYERS = {
     "read_wds": "planner.catalogs", "read_orb6": "planner.catalogs", "load_sample": "planner.catalogs",
     "load_catalog": "planner.catalogs", "find_pair": "planner.catalogs",
     "orbit_positions": "planner.motion", "pair_geometry": "planner.motion",
-    "Site": "planner.sky", "night_for": "planner.sky", "visibility": "planner.sky", "altaz": "planner.sky",
+    "Site": "planner.sky", "computer_tz": "planner.sky.site", "night_for": "planner.sky", "visibility": "planner.sky", "altaz": "planner.sky",
     "airmass": "planner.sky",
     "Telescope": "planner.optics", "rayleigh_limit_arcsec": "planner.optics",
     "dawes_limit_arcsec": "planner.optics", "sparrow_limit_arcsec": "planner.optics",

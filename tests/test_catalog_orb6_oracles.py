@@ -161,3 +161,63 @@ def test_orb6_full_width_and_special_values_present_in_the_file():
     assert r["a_arcsec"] == pytest.approx(0.01431, rel=1e-12)
     assert r["t_peri_yr"] == pytest.approx(erfa.epb(2400000.0, 48397.3164), abs=1e-9)
     assert r["grade"] == 9 and r["hd"] == "224690" and r["hip"] == "2"
+
+
+def _with(line: str, col: int, text: str) -> str:
+    return line[:col - 1] + text + line[col - 1 + len(text):]
+
+
+@pytest.mark.parametrize("p_unit", ["y", "d", "c", "h", "m"])
+@pytest.mark.parametrize("a_unit", ["a", "m", "M", "u"])
+def test_orb6_every_unit_code(p_unit, a_unit):
+    # orb6format.txt unit codes: P in m(inutes) h(ours) d(ays) y(ears) c(enturies) (col 93);
+    # a in a(rcsec) m(as) M (arcmin) u(as) (col 115); T0 in y, d (JD - 2,400,000), m (MJD),
+    # c (col 175).  Codes absent from the sample are put on a genuine line here.
+    line = _orb6_lines()[1]                  # 00003-4417 I 1477: P 384.1 y, a 1.023 a, T 2008.2 y
+    assert field(line, 93, 93) == "y" and field(line, 115, 115) == "a"
+    t_unit = {"y": "y", "d": "d", "c": "c", "h": "m", "m": "y"}[p_unit]
+    probe = _with(_with(_with(line, 93, p_unit), 115, a_unit), 175, t_unit)
+    from planner.catalogs.orb6 import parse_orb6_lines
+
+    row = parse_orb6_lines([probe.encode()]).iloc[0]
+    assert row["period_yr"] == pytest.approx(384.1 * P_UNIT[p_unit], rel=1e-12)
+    assert row["a_arcsec"] == pytest.approx(1.023 * A_UNIT[a_unit], rel=1e-12)
+    assert row["t_peri_yr"] == pytest.approx(_t_peri_years(2008.2, t_unit), abs=1e-9)
+
+
+def test_orb6_text_after_column_264_is_ignored():
+    # an orbit line is 264 columns (FORMATS B); whatever follows is not part of it
+    from planner.catalogs.orb6 import parse_orb6_lines
+
+    line = _orb6_lines()[1].ljust(264)[:264].encode()
+    df = parse_orb6_lines([line + b"\xe9 extra", line])
+    assert list(df["line_no"]) == [1.0, 2.0], df.attrs["problems"]
+    assert df["a_arcsec"].iloc[0] == df["a_arcsec"].iloc[1] == 1.023
+
+
+def test_orb6_wide_semi_major_axis_starting_one_column_early():
+    # the reader reads a from column 105 (one early, as the data show for the error columns);
+    # a 10-character value there is read whole
+    from planner.catalogs.orb6 import parse_orb6_lines
+
+    line = _with(_orb6_lines()[1], 105, "1234.56789")
+    assert parse_orb6_lines([line.encode()]).iloc[0]["a_arcsec"] == 1234.56789
+
+
+@pytest.mark.parametrize("key, first, last", [
+    ("period_yr", 82, 92), ("period_err_yr", 95, 104), ("a_arcsec", 106, 114),
+    ("a_err_arcsec", 117, 124), ("incl_deg", 126, 133), ("incl_err_deg", 135, 142),
+    ("node_deg", 144, 151), ("node_err_deg", 154, 161), ("t_peri_yr", 163, 174),
+    ("t_peri_err_yr", 177, 186), ("ecc", 188, 195), ("ecc_err", 197, 204),
+    ("omega_deg", 206, 213), ("equinox", 224, 227), ("year_last_obs", 229, 232)])
+def test_orb6_value_starting_one_column_early_is_read_whole(key, first, last):
+    # published columns (orb6format.txt / the file's ruler); the reader documents that values
+    # may start one column early, as wide values in the data do ("wide values start at col 94 /
+    # 176", FORMATS B).  A value filling first-1 .. last is read whole, not cut.
+    from planner.catalogs.orb6 import parse_orb6_lines
+
+    line = _orb6_lines()[1]                      # units y / a / y: no conversion
+    assert line[first - 2] == " "
+    digits = "1" * (last - first + 2)
+    row = parse_orb6_lines([_with(line, first - 1, digits).encode()]).iloc[0]
+    assert row[key] == float(digits), (key, row[key])

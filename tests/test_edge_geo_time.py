@@ -121,7 +121,8 @@ def test_night_window_and_slots_in_local_time(cli, lat, lon, tz, date):
     # -- the text output: the dark window in local clock time ------------------------------
     code, text, err = cli("night", *_args(lat, lon, tz, date), "--limit", "40")
     assert code == 0 and err == "", err
-    m = re.search(r"dark \(nautical\): (\d\d:\d\d) - (\d\d:\d\d) local", text)
+    # times are labelled with the site's zone (issue 12 item 5: never "local" for another clock)
+    m = re.search(r"dark \(nautical\): (\d\d:\d\d) - (\d\d:\d\d) " + re.escape(tz), text)
     assert m, text[:400]
     assert _close_hm(m.group(1), lo.astimezone(zone).strftime("%H:%M")), (m.group(1), lo.astimezone(zone))
     assert _close_hm(m.group(2), hi.astimezone(zone).strftime("%H:%M")), (m.group(2), hi.astimezone(zone))

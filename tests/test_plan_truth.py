@@ -397,3 +397,158 @@ def test_plan_night_takes_astropy_time_and_earthlocation():
     p2 = plan_night(loc, [{"aperture_mm": 127.0}], Time("2026-12-03T00:30:00", scale="utc"), tz="Europe/Madrid",
                     limit=1)
     assert p2.request.date == "2026-12-02"
+
+
+# -- item 7: target lists and sessions ---------------------------------------------------------
+
+from pathlib import Path  # noqa: E402
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
+BRACKENFOLD = {"lat_deg": 52.1873, "lon_deg": -2.4127, "elevation_m": 95.0, "tz": "Europe/London"}
+
+
+@pytest.fixture(scope="module")
+def club_targets():
+    from planner.config.planfile import read_plan_file
+    from planner.plan.night import plan_night
+
+    data = read_plan_file(EXAMPLES / "brackenfold-session.toml", what="session file")
+    req = NightRequest(site=dict(data["site"]), scopes=[dict(s) for s in data["scopes"]], date="2026-12-05",
+                       seeing_arcsec=1.5, filters={"targets": str(EXAMPLES / "brackenfold-targets.csv")})
+    return plan_night(req)
+
+
+def test_every_listed_target_appears_scheduled_or_with_its_reason(club_targets):
+    from planner.catalogs import read_target_list
+    from planner.report.exports import render_text
+
+    listed = read_target_list(EXAMPLES / "brackenfold-targets.csv")
+    t = club_targets.targets
+    assert list(t["query"]) == list(listed["query"])
+    assert (t["status"].str.len() > 0).all()
+    # 70 Oph (RA 18 h) sets in the December twilight: said, not dropped (before: no word)
+    oph = t[t["query"] == "STF2272AB"].iloc[0]
+    assert "not up in the dark" in oph["status"]
+    text = render_text(club_targets)
+    for q in listed["query"]:
+        assert q in text
+    # the bundled list names every pair the way the catalogue has it (before: 'STF 2383 Cc',
+    # copied from a table that cut 'Cc-D' short, matched nothing)
+    assert not t["status"].str.startswith("not in the catalogue").any()
+
+
+def test_target_notes_travel_to_every_export(club_targets, tmp_path):
+    from planner.report import write_report
+
+    s = club_targets.schedule
+    castor = s[s["discoverer"] == "STF 1110"]
+    assert list(castor["user_note"]) == ["Castor"]
+    for ext in ("csv", "json", "html", "txt"):
+        out = tmp_path / f"plan.{ext}"
+        write_report(club_targets, out)
+        assert "Castor" in out.read_text("utf-8"), ext
+
+
+def test_session_near_miss_counts_agree_with_the_matrix(club_targets):
+    import re
+
+    m = club_targets.matrix
+    for sp in club_targets.scopes:
+        n_near = int(re.search(r"(\d+) near misses", sp.summary).group(1))
+        assert n_near == int((m[sp.name] == "near").sum()), sp.name
+
+
+def test_full_session_near_miss_counts_agree_with_the_matrix():
+    import re
+
+    from planner.config.planfile import read_plan_file
+    from planner.plan.night import plan_night
+
+    data = read_plan_file(EXAMPLES / "brackenfold-session.toml", what="session file")
+    p = plan_night(NightRequest(site=dict(data["site"]), scopes=[dict(s) for s in data["scopes"]],
+                                date="2026-12-05", steadiness=6, challenges=True))
+    for sp in p.scopes:
+        # before: the 203 mm said "19 near misses" beside a matrix with none for it
+        n_near = int(re.search(r"(\d+) near misses", sp.summary).group(1))
+        assert n_near == int((p.matrix[sp.name] == "near").sum()), sp.name
+
+
+def test_scope_and_scopes_are_one_spelling(tmp_path, capsys):
+    from planner.config.planfile import read_plan_file
+
+    body = '[site]\nlat_deg = 52.19\nlon_deg = -2.41\ntz = "Europe/London"\n'
+    new = tmp_path / "new.toml"
+    new.write_text(body + '[[scopes]]\naperture_mm = 102\n', "utf-8")
+    old = tmp_path / "old.toml"
+    old.write_text(body + '[[scope]]\naperture_mm = 102\n', "utf-8")
+    assert read_plan_file(new)["scopes"] == read_plan_file(old)["scopes"] == [{"aperture_mm": 102}]
+    err = capsys.readouterr().err
+    assert err.count("[[scope]] is the old spelling") == 1
+
+
+# -- item 4: identifiers are never cut -----------------------------------------------------------
+
+def test_identifiers_are_shown_whole(club_targets):
+    from planner.report.exports import render_text
+
+    text = render_text(club_targets)
+    assert "STF 2383 Cc-D" in text
+    from planner.report.exports import table_lines
+
+    rows = pd.DataFrame([{"slot": 1, "slot_local": "21:00", "wds_id": "16290-2626", "discoverer": "STF 1938",
+                          "components": "Ba,Bb", "rho_arcsec": 2.0, "theta_deg": 10.0, "method": "orbit",
+                          "mag1": 5.0, "mag2": 6.0, "alt_deg": 40.0, "airmass": 1.5, "limit_arcsec": 1.5,
+                          "margin": 1.3, "chance": 0.9, "power_min": 90.0, "power_max": 150.0,
+                          "reason": "should split cleanly", "flag": "", "user_note": ""}])
+    assert "16290-2626 STF 1938 Ba,Bb" in "\n".join(table_lines(rows))
+
+
+# -- items 5 and 12: time zone labels, wording, clock changes ------------------------------------
+
+def test_times_are_labelled_with_their_zone_not_called_local():
+    from planner.report.exports import header_lines
+
+    p = _madrid(limit=1)
+    head = "\n".join(header_lines(p))
+    assert " local" not in head  # before: UTC times labelled "local" when no --tz was given
+    assert "Europe/Madrid" in head.splitlines()[1]
+    assert "Moon at most" in head  # the night's maximum, said as such
+
+
+def test_no_tz_defaults_to_the_computers_zone_and_says_so(cli, monkeypatch):
+    monkeypatch.setenv("TZ", "Europe/Madrid")
+    code, out, err = cli("night", "--lat", "40.4", "--lon", "-3.7", "--aperture", "127", "--date", "2026-12-02",
+                         "--limit", "1")
+    assert code == 0, err
+    assert "Europe/Madrid (this computer's time zone)" in err
+    # dark from 18:52 Madrid time (17:52 UTC; sunset and nautical twilight as the sky engine)
+    assert "18:52 - 07:16 Europe/Madrid" in out
+
+
+def test_clock_change_inside_the_night_is_marked():
+    from planner.plan.night import plan_night
+    from planner.report.exports import render_text
+
+    # Europe/London leaves summer time at 02:00 BST on Sunday 2026-10-25 (EU rule: last Sunday of
+    # October, 01:00 UTC)
+    p = plan_night(NightRequest(site={"lat_deg": 51.5, "lon_deg": 0.0, "tz": "Europe/London"},
+                                scopes=[{"aperture_mm": 102.0}], date="2026-10-24", seeing_arcsec=1.5))
+    text = render_text(p)
+    assert "clocks go back 1 h here (BST -> GMT)" in text
+    s = p.schedule[p.schedule["section"] == "plan"]
+    after = s["slot_start_utc"] >= np.datetime64("2026-10-25T01:00:00")
+    assert after.any() and (~after).any()
+
+
+def test_orbit_only_last_observation_is_not_called_a_last_measure():
+    from planner.catalogs import load_catalog
+    from planner.plan.pair_report import pair_report
+    from planner.report.pair import render_report
+
+    cat = load_catalog("sample")
+    from planner.catalogs import find_pair
+
+    rep = pair_report(cat, find_pair(cat, "HLD 60"), 2026.92)
+    text = render_report(rep.geometry)
+    assert "last observation used by the orbit: 1961" in text
+    assert "last measure 1961" not in text

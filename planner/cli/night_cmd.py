@@ -36,9 +36,9 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
             site_d, site_name = dict(data["site"]), str(data.get("site_name", ""))
         elif isinstance(data.get("site"), str):
             site_d, site_name = profiles.get("site", data["site"]), data["site"]
-        for sc in list(data.get("scopes", [])) + list(data.get("scope", [])):
+        for sc in list(data.get("scopes", [])):
             if not isinstance(sc, dict):
-                raise InputError(f"session file {session}: each [[scope]] must be a table")
+                raise InputError(f"session file {session}: each [[scopes]] must be a table")
             if "profile" in sc:
                 d = profiles.get("scope", sc["profile"])
                 d["name"] = sc.get("name", sc["profile"])
@@ -53,9 +53,12 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
         if site:
             raise InputError("give either --site NAME or --lat/--lon, not both")
         if tz is None:
-            print("splitplan: note: no --tz given; local times are shown in UTC", file=sys.stderr)
-        site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0,
-                  "tz": "UTC" if tz is None else tz}
+            from planner.api import computer_tz
+
+            tz = computer_tz()
+            print(f"splitplan: note: no --tz given; times are shown in {tz} (this computer's time zone)",
+                  file=sys.stderr)
+        site_d = {"lat_deg": lat, "lon_deg": lon, "elevation_m": elevation or 0.0, "tz": tz}
         site_name = ""
     elif site_d is not None:
         if elevation is not None:
@@ -189,7 +192,7 @@ def arguments(p) -> None:
     s.add_argument("--limit", type=int, metavar="N",
                    help="At most this many pairs per scope (default: as many as the night holds).")
     s.add_argument("--challenges", action="store_true", help="Add near misses in their own section.")
-    s.add_argument("--start", metavar="HH:MM", help="Start no earlier than this local time.")
+    s.add_argument("--start", metavar="HH:MM", help="Start no earlier than this local time (or 'now').")
     s.add_argument("--end", metavar="HH:MM", help="Finish by this local time.")
     s.add_argument("--share-margin", type=float, metavar="MARGIN",
                    help="Club sharing: margin counted as comfortable (default 1.5).")

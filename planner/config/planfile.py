@@ -5,7 +5,8 @@ date, telescopes, seeing, darkness, filters, catalogue, scheduling choices)
 together with the package version and the catalogue source, so that a club
 member can reproduce the same plan (``splitplan night --plan FILE``).  A
 *session file* is the same format restricted to what a club shares: usually
-the site and a list of ``[[scope]]`` tables.
+the site and a list of ``[[scopes]]`` tables (the old spelling ``[[scope]]`` is read with a
+deprecation note).
 
 Reading uses :mod:`tomllib`.  Writing uses :func:`dump_toml`, a small writer
 for the flat shapes these files need (scalars, lists of scalars, tables,
@@ -208,4 +209,14 @@ def read_plan_file(path: str | Path, what: str = "plan file") -> dict:
     if not isinstance(fv, int) or fv > FORMAT_VERSION:
         raise InputError(f"{what} {path}: format_version {fv!r} is newer than this splitplan "
                          f"understands ({FORMAT_VERSION}); upgrade splitplan")
+    if "scope" in data:
+        # one spelling for plan and session files: [[scopes]]; the old [[scope]] is still read
+        import sys
+
+        old = data.pop("scope")
+        if not isinstance(old, list):
+            raise InputError(f"{what} {path}: [[scopes]] must be a list of tables")
+        data["scopes"] = list(data.get("scopes", [])) + old
+        print(f"splitplan: note: {what} {path}: [[scope]] is the old spelling and will not be read in a "
+              "future version; write [[scopes]]", file=sys.stderr)
     return data

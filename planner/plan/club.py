@@ -69,16 +69,24 @@ def share(judged: list, share_margin: float = 1.5, slack: int = 2):
             pick = int(np.argmax(m))
         assigned[r] = pick
         counts[pick] += 1
+    # near misses that no scope splits are rows too (assigned to none), so the matrix holds every
+    # pair a scope counts as split or near, as the scopes' header counts do
+    near_any = ((verdicts == "challenge") & up[:, None]).any(axis=1) & ~any_split
+    near_rows = np.flatnonzero(near_any)
+    best_near = np.where((verdicts == "challenge") & up[:, None], scores, -np.inf).max(axis=1)
+    best = np.where(any_split, best, best_near)
+    rows = np.concatenate([order, near_rows[np.argsort(-best[near_rows], kind="stable")]])
     idx = base.index[rows]
     mat = pd.DataFrame({"wds_id": base["wds_id"].to_numpy()[rows],
                         "discoverer": base["discoverer"].to_numpy()[rows],
                         "components": base["components"].to_numpy()[rows],
                         "best_score": best[rows]}, index=idx)
     for k, n in enumerate(names):
-        mat[n] = np.where(splits[rows, k], "split", np.where(verdicts[rows, k] == "challenge", "near", "-"))
+        # "near" only for a near miss that is up in the dark, as the scopes' own counts
+        mat[n] = np.where(splits[rows, k], "split",
+                          np.where((verdicts[rows, k] == "challenge") & up[rows], "near", "-"))
         mat[f"{n} margin"] = margins[rows, k]
-    mat["assigned"] = [names[a] for a in assigned[rows]]
-    mat = mat.sort_values("best_score", ascending=False, kind="stable")
+    mat["assigned"] = [names[a] if a >= 0 else "-" for a in assigned[rows]]
     assign = {n: list(base.index[assigned == k]) for k, n in enumerate(names)}
     return mat, assign
 

@@ -19,7 +19,7 @@ SCHEDULE_COLUMNS = (
     "wds_id", "discoverer", "components", "name", "constellation", "ra_deg", "dec_deg",
     "rho_arcsec", "theta_deg", "method", "mag1", "mag2", "dm",
     "alt_deg", "az_deg", "airmass", "limit_arcsec", "margin", "chance", "verdict",
-    "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag",
+    "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag", "user_note",
 )
 
 
@@ -91,6 +91,7 @@ class NightPlan:
     matrix: object = None            # club matrix DataFrame (pairs x scopes) or None
     cautions: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    targets: object = None           # with a target list: every listed name and what became of it
     session: object = None           # the resolved planner.plan.session.Session (site, telescopes, night)
 
     @property

@@ -133,7 +133,55 @@ def restrict_to_targets(table: pd.DataFrame, path, catalog=None) -> pd.DataFrame
     if unmatched:
         names = ", ".join(repr(q) for q, _ in unmatched[:5])
         print(f"splitplan: note: {len(unmatched)} name(s) in {path} match no pair: {names}", file=sys.stderr)
-    return table[table.index.isin(sub.pairs.index)]
+    out = table[table.index.isin(sub.pairs.index)]
+    # the observer's note for each listed pair travels with it (schedule, exports)
+    return out.assign(user_note=sub.pairs["user_note"].reindex(out.index).fillna("").astype(str).to_numpy())
+
+
+def target_report(path, catalog, scopes: list) -> pd.DataFrame:
+    """Every entry of the observer's target list with what became of it: one row per listed
+    name (``query``, ``user_note``, ``pair``, ``status``); ``status`` is "not in the catalogue"
+    (with the closest names), or per telescope the pair's ``plan_status`` (scheduled at HH:MM, or
+    why not).  ``scopes``: the finished :class:`ScopePlan` objects."""
+    from planner.catalogs.catalog import find_pair
+    from planner.errors import UnknownPairError
+
+    rows = []
+    for q, note in zip(*[read_target_list(path)[c].tolist() for c in ("query", "note")]):
+        try:
+            lab = find_pair(catalog, q)
+        except UnknownPairError as exc:
+            sugg = list(getattr(exc, "suggestions", []) or [])[:3]
+            rows.append({"query": q, "user_note": note, "pair": "",
+                         "status": "not in the catalogue" + (f" (closest: {', '.join(sugg)})" if sugg else "")})
+            continue
+        r = catalog.pairs.loc[lab]
+        label = f"{r['wds_id']} {r['discoverer']} {r['components']}".strip()
+        parts = []
+        for sp in scopes:
+            c = sp.candidates
+            if c is None or lab not in c.index:
+                parts.append((sp.name, "left out by the filters (or no separation known tonight)"))
+                continue
+            st = str(c.loc[lab, "plan_status"]) if "plan_status" in c else ""
+            if st.startswith("scheduled") and sp.schedule is not None and len(sp.schedule):
+                s = sp.schedule
+                hit = s[(s["wds_id"] == r["wds_id"]) & (s["components"] == r["components"])]
+                if len(hit):
+                    st = f"{st} at {hit['slot_local'].iloc[0]}"
+            parts.append((sp.name, st))
+        if len(scopes) == 1:
+            status = parts[0][1] if parts else ""
+        else:
+            sched = [f"{n}: {st}" for n, st in parts if st.startswith("scheduled")]
+            if sched:
+                status = "; ".join(sched)
+            elif len({st for _, st in parts}) == 1:
+                status = f"{parts[0][1]} (every telescope)"
+            else:
+                status = "; ".join(f"{n}: {st}" for n, st in parts)
+        rows.append({"query": q, "user_note": note, "pair": label, "status": status})
+    return pd.DataFrame(rows, columns=["query", "user_note", "pair", "status"])
 
 
 # -- judging and scoring ----------------------------------------------------------
@@ -421,6 +469,7 @@ def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.D
         "power_max": v["power_max"].to_numpy(float) if "power_max" in v else np.nan,
         "score": rows["score"].to_numpy(float),
         "best_utc": _as_ns(rows["best_utc"]),
+        "user_note": (rows["user_note"].astype(str).to_numpy() if "user_note" in rows else ""),
     })
     sun_alt, sun_sep = sun_position(site, t0, out["ra_deg"].to_numpy(), out["dec_deg"].to_numpy())
     out["sun_alt_deg"] = sun_alt
@@ -571,6 +620,8 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                                          candidates=js.table.assign(plan_status=STATUS_NO_DARK),
                                          schedule=empty_schedule(),
                                          summary="nothing to schedule: no dark window on this date"))
+        if (request.filters or {}).get("targets"):
+            plan.targets = target_report(request.filters["targets"], cat, plan.scopes)
         return plan
     window = session.window()
     assign = None
@@ -617,4 +668,6 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
                                 request.challenges)
         plan.scopes.append(ScopePlan(name=name, telescope=dict(js.spec), candidates=j, schedule=sched,
                                      n_split=n_all, n_challenge=n_near, summary=summary))
+    if (request.filters or {}).get("targets"):
+        plan.targets = target_report(request.filters["targets"], cat, plan.scopes)
     return plan

@@ -181,22 +181,53 @@ def header_lines(plan) -> list[str]:
     s = plan.session.site
     out = [f"Night plan {n.get('local_date', r.date)}  site {r.site_name or ''} "
            f"({s.lat_deg:.4f}, {s.lon_deg:.4f}, {s.elevation_m:g} m, {s.tz})".replace("  site  (", "  site ("),
-           (f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} local"
+           (f"dark ({r.darkness}): {local_hm(plan, n.get('dark_start_utc'))} - {local_hm(plan, n.get('dark_end_utc'))} {s.tz}"
             if n.get("dark_start_utc") is not None and not pd.isna(n.get("dark_start_utc"))
             else f"dark ({r.darkness}): none on this date")
-           + (f"   Moon {100 * float(n['moon_illumination']):.0f}% lit" if n.get("moon_illumination") is not None else ""),
+           + (f"   Moon at most {100 * float(n['moon_illumination']):.0f}% lit" if n.get("moon_illumination") is not None else ""),
            f"seeing: {plan.seeing_origin}",
            f"catalogue: {plan.catalog_source}"]
     return out
 
 
-def table_lines(sched: pd.DataFrame) -> list[str]:
-    head = (f"{'#':>2} {'time':5} {'pair':<22} {'name':<14} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+def pair_label(wds_id, discoverer, components) -> str:
+    """'WDS id discoverer components', never cut: identifiers are shown whole in every output."""
+    return f"{wds_id} {f'{discoverer} {components}'.strip()}".strip()
+
+
+def _clock_marks(sched: pd.DataFrame, tz) -> dict:
+    """Row position -> a line marking a daylight-saving change of the site's clock just before it
+    (the slot times jump by the change)."""
+    if tz is None or len(sched) < 2 or "slot_start_utc" not in sched:
+        return {}
+    from zoneinfo import ZoneInfo
+
+    zone = ZoneInfo(str(tz))
+    t = pd.to_datetime(sched["slot_start_utc"])
+    if getattr(t.dt, "tz", None) is None:
+        t = t.dt.tz_localize("UTC")
+    local = [x.to_pydatetime().astimezone(zone) for x in t]
+    marks = {}
+    for i in range(1, len(local)):
+        a, b = local[i - 1], local[i]
+        if a.utcoffset() != b.utcoffset():
+            shift = (b.utcoffset() - a.utcoffset()).total_seconds() / 3600.0
+            how = "forward" if shift > 0 else "back"
+            marks[i] = (f"-- clocks go {how} {abs(shift):g} h here ({a.tzname()} -> {b.tzname()}): "
+                        "the times below are on the new clock --")
+    return marks
+
+
+def table_lines(sched: pd.DataFrame, tz=None) -> list[str]:
+    marks = _clock_marks(sched, tz)
+    ids = [pair_label(r.wds_id, r.discoverer, r.components) for r in sched.itertuples(index=False)]
+    w = max([22] + [len(x) for x in ids])  # the pair column widens; an identifier is never cut
+    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'name':<14} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
             f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
     lines = [head, "-" * len(head)]
-    for r in sched.itertuples(index=False):
-        name = f"{r.discoverer} {r.components}".strip()
-        pid = f"{r.wds_id} {name}"[:22]
+    for k, (pid, r) in enumerate(zip(ids, sched.itertuples(index=False))):
+        if k in marks:
+            lines.append(marks[k])
         how = {"orbit": "orbit", "orbit-interferometric": "orb-if", "linear": "linear",
                "last": "last"}.get(str(r.method), str(r.method))[:6]
         mags = f"{fmt_num(r.mag1, '.1f')}/{fmt_num(r.mag2, '.1f')}"
@@ -204,8 +235,10 @@ def table_lines(sched: pd.DataFrame) -> list[str]:
         note = str(r.reason)
         if r.flag:
             note = f"[{r.flag}] " + note
+        if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
+            note += f" - your note: {r.user_note}"
         star = str(getattr(r, "name", "") or "")[:14]
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<22} {star:<14} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {star:<14} {fmt_num(r.rho_arcsec, '6.2f')}\" "
                      f"{fmt_num(r.theta_deg, '4.0f', '   -')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
@@ -230,19 +263,32 @@ def render_text(plan) -> str:
             continue
         main = sched[sched["section"] == "plan"]
         chal = sched[sched["section"] == "challenge"]
-        out += ["   " + x for x in table_lines(main)]
+        out += ["   " + x for x in table_lines(main, plan.session.site.tz)]
         if len(chal):
             out.append("")
             out.append("   Challenges (near misses - may not split tonight):")
-            out += ["   " + x for x in table_lines(chal)]
+            out += ["   " + x for x in table_lines(chal, plan.session.site.tz)]
+    targets = getattr(plan, "targets", None)
+    if targets is not None and len(targets):
+        out.append("")
+        out.append(f"== Your targets ({len(targets)} listed): scheduled, or why not")
+        w = max(len(str(q)) for q in targets["query"])
+        for t in targets.itertuples(index=False):
+            line = f"   {str(t.query):<{w}}  {t.pair or '-'}: {t.status}"
+            if str(t.user_note).strip():
+                line += f"  (your note: {t.user_note})"
+            out.append(line)
     if plan.matrix is not None and len(plan.matrix):
         out.append("")
         out.append("== Who splits what (split / near / -), and who takes it")
         names = [s.name for s in plan.scopes]
-        out.append(f"   {'pair':<24}" + "".join(f"{n[:10]:>11}" for n in names) + "   assigned")
-        for idx, r in plan.matrix.head(40).iterrows():
-            label = f"{r['wds_id']} {r['discoverer']} {r['components']}"[:24]
-            out.append(f"   {label:<24}" + "".join(f"{r[n]:>11}" for n in names) + f"   {r['assigned']}")
+        shown = plan.matrix.head(40)
+        labels = [pair_label(r["wds_id"], r["discoverer"], r["components"]) for _, r in shown.iterrows()]
+        w = max([24] + [len(x) for x in labels])
+        cw = [max(10, len(n)) + 1 for n in names]
+        out.append(f"   {'pair':<{w}}" + "".join(f"{n:>{c}}" for n, c in zip(names, cw)) + "   assigned")
+        for label, (idx, r) in zip(labels, shown.iterrows()):
+            out.append(f"   {label:<{w}}" + "".join(f"{r[n]:>{c}}" for n, c in zip(names, cw)) + f"   {r['assigned']}")
         if len(plan.matrix) > 40:
             out.append(f"   ... {len(plan.matrix) - 40} more (use --out FILE.csv/.html for all)")
     out.append("")

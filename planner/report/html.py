@@ -69,8 +69,13 @@ def _radec(ra_deg, dec_deg) -> str:
 
 
 def _rows(plan, sched: pd.DataFrame) -> str:
+    from planner.report.exports import _clock_marks
+
+    marks = _clock_marks(sched, plan.session.site.tz)
     out = []
-    for r in sched.itertuples(index=False):
+    for k, r in enumerate(sched.itertuples(index=False)):
+        if k in marks:
+            out.append(f'<tr><td colspan="11" class="sub"><b>{E(marks[k].strip("- "))}</b></td></tr>')
         flag = f' <span class="flag">{E(r.flag)}</span>' if r.flag else ""
         how = {"orbit": "orbit", "orbit-interferometric": "orbit (interf.)", "linear": "linear est.",
                "last": "last measure"}.get(str(r.method), str(r.method))
@@ -89,12 +94,28 @@ def _rows(plan, sched: pd.DataFrame) -> str:
             f'<td class="n">{_f(r.limit_arcsec, ".2f")}″<br><span class="sub">×{_f(r.margin, ".2f")}</span></td>'
             f'<td class="n">{_f(100 * float(r.chance), ".0f")}%</td>'
             f'<td class="n">{_f(r.power_min, ".0f")}–{_f(r.power_max, ".0f")}×</td>'
-            f"<td>{E(r.reason)}</td>"
+            f"<td>{E(r.reason)}{_user_note(r)}</td>"
             "</tr>")
     return "\n".join(out)
 
 
-TABLE_HEAD = ("<tr><th>#</th><th>slot (local)</th><th>pair</th><th>ρ / θ tonight</th><th>from</th>"
+def _user_note(r) -> str:
+    note = str(getattr(r, "user_note", "") or "").strip()
+    return f'<br><span class="sub">your note: {E(note)}</span>' if note and note != "nan" else ""
+
+
+def _targets(plan) -> str:
+    t = getattr(plan, "targets", None)
+    if t is None or len(t) == 0:
+        return ""
+    rows = "".join(f"<tr><td>{E(r.query)}</td><td>{E(r.pair or '-')}</td><td>{E(r.status)}</td>"
+                   f"<td>{E(r.user_note)}</td></tr>" for r in t.itertuples(index=False))
+    return ('<section class="card"><h2>Your targets</h2><p class="sub">Every name of the target list: '
+            'scheduled, or why not.</p><table><tr><th>listed as</th><th>pair</th><th>tonight</th>'
+            f"<th>your note</th></tr>{rows}</table></section>")
+
+
+TABLE_HEAD = ("<tr><th>#</th><th>slot (site's clock)</th><th>pair</th><th>ρ / θ tonight</th><th>from</th>"
               "<th>mags</th><th>alt / airmass</th><th>limit / margin</th><th>chance</th>"
               "<th>power</th><th>why</th></tr>")
 
@@ -159,10 +180,10 @@ def _night(plan) -> str:
     n = plan.night
     items = [("date (evening)", n.get("local_date", "")),
              ("darkness", plan.request.darkness),
-             ("dark window", f"{local_hm(plan, n.get('dark_start_utc'))} – {local_hm(plan, n.get('dark_end_utc'))} local"),
+             ("dark window", f"{local_hm(plan, n.get('dark_start_utc'))} – {local_hm(plan, n.get('dark_end_utc'))} {plan.session.site.tz}"),
              ("sunset / sunrise", f"{local_hm(plan, n.get('sunset_utc'))} / {local_hm(plan, n.get('sunrise_utc'))}")]
     if n.get("moon_illumination") is not None:
-        items.append(("Moon", f"{100 * float(n['moon_illumination']):.0f}% lit, above the horizon for "
+        items.append(("Moon", f"at most {100 * float(n['moon_illumination']):.0f}% lit during the night, above the horizon for "
                               f"{n.get('moon_up', '?')} of the window"))
     if n.get("status"):
         items.append(("status", n["status"]))
@@ -218,6 +239,7 @@ def render_html(plan) -> str:
     ]
     parts += [_scope_section(plan, sp) for sp in plan.scopes]
     parts.append(_calibration(plan))
+    parts.append(_targets(plan))
     parts.append(_matrix(plan))
     if diagrams:
         parts.append('<section class="card"><h2>The pairs as seen</h2><p class="sub">North up, east left '
@@ -226,6 +248,6 @@ def render_html(plan) -> str:
                      f'<div class="diagrams">{diagrams}</div></section>')
     parts.append("<footer>Made with splitplan "
                  f"{E(plan.version)}. Catalogue data: Washington Double Star Catalog and Sixth Catalog of "
-                 "Orbits of Visual Binary Stars, U.S. Naval Observatory. Times in the site's local time.</footer>")
+                 "Orbits of Visual Binary Stars, U.S. Naval Observatory. Times on the site's clock, in its time zone (shown with the night).</footer>")
     parts.append("</main></body></html>")
     return "\n".join(parts)

@@ -64,9 +64,15 @@ def render_report(rep: dict) -> str:
     last = rep["last_measure"]
     if last["year"] is not None:
         meas = f"{last['year']:.0f}"
+        ago = f"{_f(rep['years_since_measure'], '.0f')} yr ago"
         if last["rho_arcsec"] is not None:
             meas += f": {last['rho_arcsec']:.1f}\" at {_f(last['theta_deg'], '.0f')} deg"
-        lines.append(f"last measure {meas} ({_f(rep['years_since_measure'], '.0f')} yr ago)")
+            lines.append(f"last measure {meas} ({ago})")
+        else:
+            # an ORB6-only row: the year is the last observation the orbit was fitted to, not the
+            # last time anyone measured the pair
+            lines.append(f"orbit data  last observation used by the orbit: {meas} ({ago}; the pair may have "
+                         "been measured since)")
     lines.append(f"note        {rep['reason']}")
     if rep["ra_date_deg"] is not None:
         lines.append(f"position    RA {ra_text(rep['ra_date_deg'])} = {rep['ra_date_deg']:.4f} deg,"

@@ -32,8 +32,8 @@ def _cover(plan, pdf, plt):
         "Telescopes: " + "; ".join(scope_label(sc) for sc in r.scopes),
         f"Seeing: {plan.seeing_origin}",
         f"Darkness: {r.darkness}; dark window {local_hm(plan, n.get('dark_start_utc'))} - "
-        f"{local_hm(plan, n.get('dark_end_utc'))} local",
-        (f"Moon: {100 * float(n['moon_illumination']):.0f}% lit, above the horizon for {n.get('moon_up', '?')} of the window"
+        f"{local_hm(plan, n.get('dark_end_utc'))} {s.tz}",
+        (f"Moon: at most {100 * float(n['moon_illumination']):.0f}% lit during the night, above the horizon for {n.get('moon_up', '?')} of the window"
          if n.get("moon_illumination") is not None else "Moon: -"),
         f"{r.minutes:g} min per target, "
         + (f"at most {r.limit} pairs per scope" if r.limit else "as many pairs as the night holds")
@@ -76,6 +76,8 @@ def _table_pages(plan, pdf, plt):
         rows = []
         for r in sched.itertuples(index=False):
             note = (f"[{r.flag}] " if r.flag else "") + ("CHALLENGE: " if r.section == "challenge" else "") + str(r.reason)
+            if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
+                note += f" - your note: {r.user_note}"
             rows.append([str(r.slot), f"{r.slot_local}", f"{r.discoverer} {r.components}".strip(),
                          f"{getattr(r, 'name', '') or ''} {r.constellation}".strip(), str(r.wds_id),
                          _f(r.rho_arcsec, ".2f"), _f(r.theta_deg, ".0f"), str(r.method),

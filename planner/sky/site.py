@@ -223,6 +223,32 @@ class Site:
         return ts.strftime(fmt)
 
 
+def computer_tz() -> str:
+    """The IANA name of this computer's own time zone (the ``TZ`` variable, else the target of
+    ``/etc/localtime``), or ``"UTC"`` when it cannot be told.  Used when no zone is given, so the
+    times shown are the observer's clock and are labelled with the zone's name."""
+    import os
+    from zoneinfo import ZoneInfo
+
+    cands = []
+    tz = os.environ.get("TZ", "").strip().lstrip(":")
+    if tz:
+        cands.append(tz)
+    try:
+        real = os.path.realpath("/etc/localtime")
+        if "zoneinfo/" in real:
+            cands.append(real.split("zoneinfo/", 1)[1])
+    except OSError:
+        pass
+    for c in cands:
+        try:
+            ZoneInfo(c)
+            return c
+        except Exception:  # not an IANA name (e.g. a POSIX TZ string)
+            continue
+    return "UTC"
+
+
 def _zone_for(name):
     from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
