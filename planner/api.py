@@ -186,12 +186,14 @@ def reliability_table(entries, calibration):
     return _table(entries, calibration)
 
 
-def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None):
+def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None,
+                others=()):
     """Everything known about one pair at one epoch, as a
     :class:`~planner.plan.pair_report.PairReport` (see :mod:`planner.plan.pair_report`).
 
-    ``query``: a designation or WDS id (``"STF2272AB"``), or a row label of
-    ``catalog.pairs``; ``catalog``: a spec string or a loaded Catalog; ``epoch_yr``: a
+    ``query``: a star name, designation or WDS id (``"Albireo"``, ``"STF2272AB"``;
+    docs/names.md), or a row label of ``catalog.pairs``; ``others``: row labels of the
+    other pairs of the same name (listed in the report); ``catalog``: a spec string or a loaded Catalog; ``epoch_yr``: a
     Besselian year (None: now); ``years``: epochs for a table, or ``"FROM:TO[:STEP]"``;
     ``request``: a :class:`NightRequest` with the site, one telescope and the evening,
     for the verdict.  ``report.to_dict()`` is the JSON of ``splitplan pair --json``;
@@ -206,7 +208,8 @@ def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", y
     epoch = _pr.resolve_epoch() if epoch_yr is None else float(epoch_yr)
     if isinstance(years, str):
         years = _pr.parse_years(years)
-    return _pr.pair_report(cat, label, epoch, precession=precession, years=years, request=request)
+    return _pr.pair_report(cat, label, epoch, precession=precession, years=years, request=request,
+                           others=others)
 
 
 #: the layers underneath, importable from here too (loaded on first use)
@@ -226,6 +229,10 @@ _LAYERS = {
     "compare_request": "planner.plan.apertures:compare_apertures",
     "plot_aperture_counts": "planner.plan.apertures:plot_counts",
     "constellation_abbreviations": "planner.sky.constellations",
+    "constellation_abbreviation": "planner.catalogs.constellations:constellation",
+    # names (offline index; CDS SIMBAD only when asked)
+    "find_pairs": "planner.catalogs", "pair_names": "planner.catalogs", "describe_name": "planner.catalogs",
+    "find_pairs_online": "planner.catalogs.resolve",
     # one pair
     "PairReport": "planner.plan.pair_report", "resolve_epoch": "planner.plan.pair_report",
     "parse_years": "planner.plan.pair_report",

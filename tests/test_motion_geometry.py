@@ -117,6 +117,13 @@ def test_contract_columns_and_alignment(sample, geo):
     assert set(geo["method"]) <= {"orbit", "orbit-interferometric", "linear", "last", "none"}
     ok = geo["rho_arcsec"].notna()
     assert (geo.loc[ok, "rho_arcsec"] >= 0).all()
+    # a separation without a catalogued angle (BSC5 multiple-star fields, docs/names.md) has
+    # theta NaN; every other row with rho has theta in [0, 360)
+    no_angle = ok & geo["theta_deg"].isna()
+    assert (sample.pairs.loc[no_angle, "source"] == "bsc5").all()
+    assert sample.pairs.loc[no_angle, "pa_last_deg"].isna().all()
+    assert (geo.loc[no_angle, "method"] == "last").all() and geo.loc[no_angle, "theta_unc_deg"].isna().all()
+    ok &= ~no_angle
     assert geo.loc[ok, "theta_deg"].between(0, 360, inclusive="left").all()
     assert (geo.loc[ok, "rho_unc_arcsec"] > 0).all() and (geo.loc[ok, "theta_unc_deg"] > 0).all()
 

@@ -127,13 +127,12 @@ def check_filters(filters: dict) -> None:
     if lo is not None and hi is not None and lo > hi:
         raise InputError(f"--sep-min {lo:g} is larger than --sep-max {hi:g}")
     if filters.get("constellations"):
-        from planner.api import constellation_abbreviations
+        from planner.api import constellation_abbreviation
 
-        known = constellation_abbreviations()
-        bad = [c for c in filters["constellations"] if c.lower() not in known]
+        bad = [c for c in filters["constellations"] if constellation_abbreviation(c) is None]
         if bad:
-            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation abbreviation "
-                             "(e.g. Cyg, UMa, Boo)")
+            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation (abbreviation "
+                             "or Latin name, e.g. Cyg, Cygnus, Cygni, UMa, Ursae Majoris)")
 
 
 OUT_FORMATS = (".csv", ".json", ".xml", ".vot", ".html", ".htm", ".pdf", ".txt")

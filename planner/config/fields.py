@@ -118,6 +118,8 @@ FIELDS: dict[str, Field] = {
     "site_name": Field("site name", "text"),
     "nights": Field("nights", "int", lo=1, hi=366, unit="nights sampled"),
     "calibration": Field("calibration", "choice", choices=CALIBRATIONS),
+    "skip_done": Field("skip pairs already split", "bool"),
+    "prefer_new": Field("prefer pairs never tried", "bool"),
     "wide_factor": Field("close-double ceiling", lo=0.0, hi=1e6, unit="x the Dawes limit", hint="(0: none)"),
     # filters
     "mag_max": Field("largest primary magnitude", lo=-30.0, hi=30.0, unit="mag"),

@@ -19,7 +19,7 @@ __all__ = ["NightRequest", "NightPlan", "ScopePlan", "SCHEDULE_COLUMNS", "DARKNE
 #: Columns of a schedule table (one row per scheduled pair), in display order.
 SCHEDULE_COLUMNS = (
     "section", "slot", "slot_start_utc", "slot_end_utc", "slot_local", "scope",
-    "wds_id", "discoverer", "components", "constellation", "ra_deg", "dec_deg",
+    "wds_id", "discoverer", "components", "name", "constellation", "ra_deg", "dec_deg",
     "rho_arcsec", "theta_deg", "method", "mag1", "mag2", "dm",
     "alt_deg", "az_deg", "airmass", "limit_arcsec", "margin", "chance", "verdict",
     "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag", "user_note",

@@ -24,7 +24,7 @@ from planner.config.seeing_scale import load_scale, steadiness_to_seeing
 from planner.errors import InputError
 from planner.optics.telescope import Telescope
 from planner.plan.model import NightRequest
-from planner.sky.constellations import constellation_abbreviations
+from planner.catalogs.constellations import constellation
 from planner.sky.night import Night, night_for
 from planner.sky.site import Site
 
@@ -120,9 +120,10 @@ def checked(request: NightRequest) -> NightRequest:
         raise InputError("the telescopes must be a list of tables ([[scopes]] in a plan file)")
     scopes = [check_mapping("telescope", sd, (*SCOPE_FIELDS, "name")) for sd in request.scopes]
     filters = check_filters(request.filters)
-    unknown = [c for c in filters.get("constellations", []) if c.lower() not in constellation_abbreviations()]
+    unknown = [c for c in filters.get("constellations", []) if constellation(c) is None]
     if unknown:
-        raise InputError(f"--constellation {unknown[0]!r} is not an IAU constellation abbreviation (e.g. Cyg, UMa, Boo)")
+        raise InputError(f"--constellation {unknown[0]!r} is not an IAU constellation (abbreviation "
+                         "or Latin name, e.g. Cyg, Cygnus, Cygni, UMa, Ursae Majoris)")
     return dataclasses.replace(request, site=site, scopes=scopes, filters=filters, **kw)
 
 

@@ -212,7 +212,7 @@ def table_lines(sched: pd.DataFrame, tz=None) -> list[str]:
     marks = _clock_marks(sched, tz)
     ids = [pair_label(r.wds_id, r.discoverer, r.components) for r in sched.itertuples(index=False)]
     w = max([22] + [len(x) for x in ids])  # the pair column widens; an identifier is never cut
-    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'name':<14} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
             f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
     lines = [head, "-" * len(head)]
     for k, (pid, r) in enumerate(zip(ids, sched.itertuples(index=False))):
@@ -227,8 +227,9 @@ def table_lines(sched: pd.DataFrame, tz=None) -> list[str]:
             note = f"[{r.flag}] " + note
         if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
             note += f" - your note: {r.user_note}"
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {fmt_num(r.rho_arcsec, '6.2f')}\" "
-                     f"{fmt_num(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
+        star = str(getattr(r, "name", "") or "")[:14]
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {star:<14} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+                     f"{fmt_num(r.theta_deg, '4.0f', '   -')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
     return lines
