@@ -17,6 +17,7 @@ is cheap.  Example::
 from __future__ import annotations
 
 from planner import __version__
+from planner.config.fields import DEFAULT_DARKNESS, DEFAULT_MINUTES, DEFAULT_SEEING_ARCSEC
 
 
 def _site_mapping(site, tz=None) -> dict:
@@ -64,8 +65,8 @@ def _evening_date(date, tz):
     return date
 
 
-def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness="nautical",
-               catalog="sample", minutes=10.0, limit=None, challenges=False, filters=None, site_name="",
+def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, darkness=DEFAULT_DARKNESS,
+               catalog="sample", minutes=DEFAULT_MINUTES, limit=None, challenges=False, filters=None, site_name="",
                start_local=None, end_local=None, min_alt_deg=None, share_margin=1.5, tz=None):
     """The night plan (a :class:`planner.plan.model.NightPlan`); see :mod:`planner.plan.night`.
 
@@ -102,7 +103,7 @@ def plan_night(site, scopes, date=None, *, seeing_arcsec=None, steadiness=None, 
     return _plan(req, catalog=cat)
 
 
-def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_arcsec=2.0, **kw):
+def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_arcsec=DEFAULT_SEEING_ARCSEC, **kw):
     """Verdict, best time tonight and best dates of the year for one pair; see
     :func:`planner.plan.single.check_pair`."""
     from planner.plan.single import check_pair as _check
@@ -120,8 +121,8 @@ def check_pair(catalog, query, site, local_date=None, telescope=102.0, seeing_ar
 
 
 def compare_apertures(site, apertures_mm, date=None, *, date_to=None, nights=4, obstruction=0.0,
-                      seeing_arcsec=None, steadiness=None, darkness="nautical", catalog="sample",
-                      minutes=10.0, filters=None):
+                      seeing_arcsec=None, steadiness=None, darkness=DEFAULT_DARKNESS, catalog="sample",
+                      minutes=DEFAULT_MINUTES, filters=None):
     """Pairs split per aperture (and what each step adds); see :mod:`planner.plan.apertures`."""
     from planner.plan.apertures import compare_apertures as _cmp
     from planner.plan.model import NightRequest
@@ -185,12 +186,14 @@ def reliability_table(entries, calibration):
     return _table(entries, calibration)
 
 
-def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None):
+def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", years=None, request=None,
+                others=()):
     """Everything known about one pair at one epoch, as a
     :class:`~planner.plan.pair_report.PairReport` (see :mod:`planner.plan.pair_report`).
 
-    ``query``: a designation or WDS id (``"STF2272AB"``), or a row label of
-    ``catalog.pairs``; ``catalog``: a spec string or a loaded Catalog; ``epoch_yr``: a
+    ``query``: a star name, designation or WDS id (``"Albireo"``, ``"STF2272AB"``;
+    docs/names.md), or a row label of ``catalog.pairs``; ``others``: row labels of the
+    other pairs of the same name (listed in the report); ``catalog``: a spec string or a loaded Catalog; ``epoch_yr``: a
     Besselian year (None: now); ``years``: epochs for a table, or ``"FROM:TO[:STEP]"``;
     ``request``: a :class:`NightRequest` with the site, one telescope and the evening,
     for the verdict.  ``report.to_dict()`` is the JSON of ``splitplan pair --json``;
@@ -205,7 +208,8 @@ def pair_report(query, catalog="sample", epoch_yr=None, *, precession="j2000", y
     epoch = _pr.resolve_epoch() if epoch_yr is None else float(epoch_yr)
     if isinstance(years, str):
         years = _pr.parse_years(years)
-    return _pr.pair_report(cat, label, epoch, precession=precession, years=years, request=request)
+    return _pr.pair_report(cat, label, epoch, precession=precession, years=years, request=request,
+                           others=others)
 
 
 #: the layers underneath, importable from here too (loaded on first use)
@@ -224,7 +228,11 @@ _LAYERS = {
     "plan_request": "planner.plan.night:plan_night",
     "compare_request": "planner.plan.apertures:compare_apertures",
     "plot_aperture_counts": "planner.plan.apertures:plot_counts",
-    "constellation_abbreviations": "planner.plan.night",
+    "constellation_abbreviations": "planner.sky.constellations",
+    "constellation_abbreviation": "planner.catalogs.constellations:constellation",
+    # names (offline index; CDS SIMBAD only when asked)
+    "find_pairs": "planner.catalogs", "pair_names": "planner.catalogs", "describe_name": "planner.catalogs",
+    "find_pairs_online": "planner.catalogs.resolve",
     # one pair
     "PairReport": "planner.plan.pair_report", "resolve_epoch": "planner.plan.pair_report",
     "parse_years": "planner.plan.pair_report",

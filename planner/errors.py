@@ -31,14 +31,19 @@ class CatalogError(PlannerError):
 class UnknownPairError(InputError):
     """A pair designation matched nothing; ``suggestions`` lists close names."""
 
-    def __init__(self, query: str, suggestions: list[str] | None = None):
+    def __init__(self, query: str, suggestions: list[str] | None = None, message: str | None = None):
         self.query = query
         self.suggestions = list(suggestions or [])
+        #: set when the name is a known star that has no pair in the loaded catalogue
+        self.known = message
         msg = f"no pair matches {query!r}"
-        if self.suggestions:
+        if message:
+            msg = message
+        elif self.suggestions:
             msg += "; closest: " + ", ".join(self.suggestions[:5])
         else:
-            msg += "; give a WDS id such as 18055+0230 or a designation such as STF2272AB"
+            msg += ("; give a star name such as Albireo or 'eps Lyr', a WDS id such as 18055+0230 "
+                    "or a designation such as STF2272AB")
         super().__init__(msg)
 
 

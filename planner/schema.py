@@ -16,6 +16,7 @@ so the documentation cannot drift from the code.
 
 from __future__ import annotations
 
+import math
 from typing import NamedTuple
 
 
@@ -127,3 +128,17 @@ def markdown() -> str:
 
 if __name__ == "__main__":  # pragma: no cover
     print(markdown())
+
+
+def plain_value(v, digits: int | None = None):
+    """A table value as plain JSON: numpy scalars as Python numbers and booleans, NaN and
+    infinities as None, floats rounded to ``digits`` when given; anything else unchanged.
+    (The one JSON cleaner of the package.)"""
+    if type(v).__module__ == "numpy" and hasattr(v, "item") and getattr(v, "dtype", None) is not None \
+            and v.dtype.kind in "biuf":
+        v = v.item()
+    if isinstance(v, float):
+        if not math.isfinite(v):
+            return None
+        return round(v, digits) if digits is not None else v
+    return v

@@ -15,8 +15,12 @@ from __future__ import annotations
 
 import functools
 import inspect
+import math
 
 from planner.errors import InputError
+
+#: arcseconds per radian, 180 x 3600 / pi = 206264.806... (the one home of this conversion)
+ARCSEC_PER_RAD = 180.0 * 3600.0 / math.pi
 
 #: name suffix -> astropy unit string (the suffixes of planner/schema.py and DEVELOPERS.md)
 SUFFIX_UNITS = {

@@ -61,7 +61,7 @@ import numpy as np
 import pandas as pd
 
 from planner.errors import InputError
-from planner.optics.limits import ARCSEC_PER_RAD, check_criterion, lod_arcsec
+from planner.optics.limits import AIRY_FWHM_LOD, check_criterion, lod_arcsec
 from planner.optics.rules import required_separation_arcsec
 from planner.optics.separability import (
     DEFAULT_CONTRAST,
@@ -70,6 +70,7 @@ from planner.optics.separability import (
 )
 from planner.optics.seeing import seeing_fwhm_arcsec
 from planner.optics.telescope import Telescope
+from planner.units import ARCSEC_PER_RAD
 from planner.optics.visibility_limit import (
     DEFAULT_EXTINCTION_K,
     DEFAULT_EYE_PUPIL_MM,
@@ -225,7 +226,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     # -- magnification ------------------------------------------------------
     lod = float(lod_arcsec(ap, lam))
     blur = effective_blur_lod(ap, see, xcalc, lam, steady_fraction, disp) * lod
-    blur_tot = np.hypot(blur, 1.028 * lod)
+    blur_tot = np.hypot(blur, AIRY_FWHM_LOD * lod)
     power_max = np.minimum(power_per_mm * ap, BLUR_APPARENT_MAX_ARCSEC / blur_tot)
     seeing_x = seeing_fwhm_arcsec(see, xcalc, lam)
     with np.errstate(divide="ignore"):
@@ -272,7 +273,7 @@ def judge(rho_arcsec, mag1, mag2, airmass, telescope, seeing_arcsec, sky_mag_arc
     faint = np.isfinite(mag_margin) & (mag_margin < 0)
     near_faint = np.isfinite(mag_margin) & (mag_margin >= 0) & (mag_margin < MAG_CHALLENGE)
     fails_perfect = rho < limit_best
-    first_ring_lod = 2.233  # second dark ring of the clear aperture, lambda/D (methods-reference 1)
+    first_ring_lod = 2.233  # second dark ring of the clear aperture, lambda/D (docs/methods.md section 1)
     ring_zone = rho < first_ring_lod * lod
     ok_at_zenith = rho >= MARGIN_CHALLENGE * limit_zenith
     conds = [

@@ -63,14 +63,15 @@ _COPIES = (DATA / "usno", Path(__file__).resolve().parents[1] / "catalogs_sample
 
 
 def reference_file(name: str) -> Path:
-    """A USNO reference file: ../shared/reference if present, else the copy kept
-    in tests/data/usno or catalogs_sample; skipped (whole module if called at
-    import) only if none exists."""
-    for folder in (REFERENCE, *_COPIES):
+    """A USNO reference file: the copy shipped in tests/data/usno or catalogs_sample;
+    a file too big to ship is read from ../shared/reference, and the test (the
+    whole module if called at import) is skipped, saying so, when it is absent."""
+    for folder in (*_COPIES, REFERENCE):
         p = folder / name
         if p.exists():
             return p
-    pytest.skip(f"reference file {name} not available", allow_module_level=True)
+    pytest.skip(f"reference file {name} is not shipped with the tests and ../shared/reference/{name} "
+                "is absent", allow_module_level=True)
 
 
 @pytest.fixture

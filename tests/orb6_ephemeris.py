@@ -1,6 +1,6 @@
 """Test-side reader of the ORB6 ephemeris file (``orb6_ephemerides_2005_2009.txt``).
 
-Source of the layout: ``../shared/reference/FORMATS.md`` section C (inferred
+Source of the layout: the USNO ORB6 ephemeris file (layout inferred, see docs/orbit-validation.md) (inferred
 from the file itself; no USNO format document exists for it).  The fields are
 read by column, never by whitespace, because theta and rho touch when
 rho >= 100" (``254.3326.882``).  Columns (1-based, inclusive):

@@ -21,7 +21,7 @@ def test_every_public_name_resolves():
 
 
 def test_dawes_through_the_api():
-    # Dawes 1867: 115.8"/D mm -> 1.158" at 100 mm (methods-reference section 1)
+    # Dawes 1867: 115.8"/D mm -> 1.158" at 100 mm (docs/methods.md section 1)
     assert abs(api.dawes_limit_arcsec(100) - 1.158) < 1e-3
 
 

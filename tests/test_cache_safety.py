@@ -170,3 +170,19 @@ def test_no_cache_switch(wds_file, monkeypatch):
     monkeypatch.setenv("SPLITPLAN_NO_CACHE", "1")
     load_files(wds_file)
     assert not (user_dir("cache") / "catalogs").exists() or not list((user_dir("cache") / "catalogs").iterdir())
+
+
+def test_whole_plan_runs_when_the_cache_folder_cannot_be_made(tmp_path, monkeypatch, cli):
+    # issue 13 item 8: every cache (catalogue, Earth orientation, separability tables) is optional
+    import planner.sky._astrometry as astrometry
+
+    home = tmp_path / "home"
+    home.mkdir()
+    (home / "cache").write_text("x")  # the cache folder's place is taken by a file
+    monkeypatch.setenv("SPLITPLAN_HOME", str(home))
+    monkeypatch.setattr(astrometry, "_eop", None)
+    code, out, err = cli("night", "--lat", "52.1873", "--lon", "-2.4127", "--tz", "Europe/London",
+                         "--date", "2026-12-05", "--aperture", "102", "--limit", "2")
+    assert code == 0, err
+    assert "Night plan 2026-12-05" in out
+    assert "Traceback" not in err and "error" not in err.lower()

@@ -35,10 +35,14 @@ def test_sample_shape_and_contract(sample):
     assert set(ORBIT_CONTRACT) <= set(sample.orbits.columns)
     # ORB6 (orb6_orbits.txt): 2,096 orbits; 1,961 distinct (wds_id, components) pairs -- none of them
     # is one of the three WDS rows (00000+7530, 00000+4004, 00023-2943 have no ORB6 orbit) -- so
-    # 1,961 + 3 = 1,964 pair rows
+    # 1,961 + 3 = 1,964 pair rows; plus the BSC5 bright pairs (bsc5_pairs.csv, 1,037 rows built by
+    # scripts/build_name_index.py) that no ORB6 pair already holds: 879 (158 share the WDS id and
+    # component key of an ORB6 pair, which keeps its orbit)
     assert len(sample.orbits) == 2096
     assert sample.orbits.groupby(["wds_id", "components"]).ngroups == 1961
-    assert len(sample.pairs) == 1964
+    assert (sample.pairs["source"] != "bsc5").sum() == 1964
+    assert (sample.pairs["source"] == "bsc5").sum() == 879
+    assert len(sample.pairs) == 1964 + 879
     assert sample.pairs.index.is_unique
     assert (sample.pairs["source"] == "wds").sum() == 3
     assert sample.problems == []

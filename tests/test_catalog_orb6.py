@@ -1,13 +1,12 @@
 """Validation of the ORB6 reader against the USNO ORB6 orbits text file.
 
 Catalogue: Sixth Catalog of Orbits of Visual Binary Stars (USNO; Hartkopf,
-Mason & Worley 2001), text version, late-2008 snapshot kept in
-../shared/reference/orb6_orbits.txt (and bundled in catalogs_sample/).
-Expected values are read by eye from the lines of that file (quoted beside
-each check with the line number) or taken from the counts in
-../shared/reference/README.md.  Unit conversions are checked against the
-definitions in ../shared/reference/FORMATS.md section B; the Besselian-year
-formula is Lieske (1979), A&A 73, 282.
+Mason & Worley 2001), text version, late-2008 snapshot bundled in
+catalogs_sample/orb6_orbits.txt.  Expected values are read by eye from the
+lines of that file (quoted beside each check with the line number) or counted
+from it (docs/catalogs.md).  Unit conversions are checked against the ORB6
+format's unit flags (Hartkopf, Mason & Worley 2001; docs/catalogs.md); the
+Besselian-year formula is Lieske (1979), A&A 73, 282 (docs/methods.md section 7).
 """
 
 from __future__ import annotations
@@ -18,7 +17,9 @@ import numpy as np
 import pytest
 
 from conftest import reference_file
-from planner.catalogs.orb6 import TROPICAL_YEAR_D, besselian_from_jd, parse_orb6_lines, read_orb6
+from planner.catalogs.orb6 import parse_orb6_lines, read_orb6
+from planner.utc import TROPICAL_YEAR_D
+from planner.utc import besselian_year_from_jd
 from planner.errors import CatalogError, InputError
 
 TROP = 365.242198781  # tropical year in days (FORMATS.md section B; from memory: 365.2421988)
@@ -247,8 +248,8 @@ def test_preferred_rule_grade_then_year():
 
 def test_besselian_formula():
     # Lieske (1979): B1900.0 = JD 2415020.31352, B1950.0 = JD 2433282.4235
-    assert besselian_from_jd(2415020.31352) == pytest.approx(1900.0, abs=1e-12)
-    assert besselian_from_jd(2433282.4235) == pytest.approx(1950.0, abs=1e-6)
+    assert besselian_year_from_jd(2415020.31352) == pytest.approx(1900.0, abs=1e-12)
+    assert besselian_year_from_jd(2433282.4235) == pytest.approx(1950.0, abs=1e-6)
     assert TROPICAL_YEAR_D == TROP
 
 

@@ -70,7 +70,7 @@ def test_cli_show_sample(cli):
     code, out, err = cli("catalog", "show")
     assert code == 0, err
     assert "bundled sample" in out
-    assert "pairs:     1964" in out
+    assert "pairs:     2843" in out  # 1,964 ORB6/WDS + 879 BSC5 bright pairs (test_catalog_lookup)
     assert "pairs with a usable orbit (complete, grade 1-5): 1546" in out
     # ORB6 grades (orb6_orbits.txt): 59/222/344/513/471 visual, 15 interferometric, 472 astrometric
     assert "grade 1: 59" in out and "grade 9: 472" in out

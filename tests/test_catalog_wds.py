@@ -1,8 +1,8 @@
 """Validation of the WDS summary reader.
 
-Catalogue: Washington Double Star Catalog (USNO), summary-line layout of
-../shared/reference/FORMATS.md section A.  The three genuine rows are in
-../shared/reference/wds_rows_found.txt (a '#' comment line first, and a
+Catalogue: Washington Double Star Catalog (USNO), summary-line layout as in
+docs/catalogs.md.  The three genuine rows are in
+tests/data/usno/wds_rows_found.txt (a '#' comment line first, and a
 constellation abbreviation added after column 130 by the quoting file); every
 expected value below is read by eye from those lines.
 """

@@ -26,11 +26,11 @@ def one_error_line(err: str) -> str:
 @pytest.mark.parametrize("extra, words", [
     (["--minutes", "0"], ["minutes", "240"]),
     (["--sep-min", "5", "--sep-max", "1"], ["--sep-min 5", "--sep-max 1"]),
-    (["--dm-max", "-1"], ["--dm-max -1", "0 or more"]),
-    (["--sep-min", "-1"], ["--sep-min -1", "0 or more"]),
+    (["--dm-max", "-1"], ["--dm-max -1", "allowed 0 to"]),
+    (["--sep-min", "-1"], ["--sep-min -1", "allowed 0 to"]),
     (["--constellation", "Xyz"], ["'Xyz'", "IAU"]),
     (["--start", "23:00", "--end", "22:00"], ["--start 23:00", "--end 22:00"]),
-    (["--share-margin", "-1"], ["--share-margin -1", "0.5 and 10"]),
+    (["--share-margin", "-1"], ["--share-margin -1", "0.5 to 10"]),
     (["--out", "plan.docx"], [".docx", ".html"]),
 ])
 def test_night_refuses(cli, extra, words):
@@ -54,8 +54,8 @@ def test_constellation_abbreviation_any_case(cli):
 
 
 @pytest.mark.parametrize("extra, words", [
-    (["--to", "2027-02-01", "--nights", "0"], ["--nights 0", "1 or more"]),
-    (["--to", "2027-02-01", "--nights", "-2"], ["--nights -2", "1 or more"]),
+    (["--to", "2027-02-01", "--nights", "0"], ["--nights 0", "allowed 1 to"]),
+    (["--to", "2027-02-01", "--nights", "-2"], ["--nights -2", "allowed 1 to"]),
 ])
 def test_apertures_refuses(cli, extra, words):
     code, out, err = cli(*APS, *extra)
@@ -70,7 +70,7 @@ def test_aperture_ranges_agree_between_commands(cli):
     code, _, err = cli(*APS[:1], "5000", *APS[3:])
     assert code == 0, err
     code, _, err = cli(*APS[:1], "20000", *APS[3:])
-    assert code == 2 and "10-10000 mm" in one_error_line(err)
+    assert code == 2 and "10 to 10000 mm" in one_error_line(err)
     code, _, err = cli("night", *NIGHT[1:-4], "--aperture", "20000")
     assert code == 2 and "10000 mm" in one_error_line(err)
 

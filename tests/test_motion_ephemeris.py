@@ -1,7 +1,7 @@
 """Validation of orbit_positions against the catalogue's own ephemeris.
 
 Source: USNO Sixth Catalog of Orbits of Visual Binary Stars, orbit-elements
-file (``../shared/reference/orb6_orbits.txt``, late-2008 snapshot) and the
+file (``catalogs_sample/orb6_orbits.txt``, late-2008 snapshot) and the
 catalogue's ephemerides for 2005.0-2009.0 (``orb6_ephemerides_2005_2009.txt``,
 an earlier catalogue version); layout FORMATS.md sections B and C; matching
 rule and conventions from the reference README.

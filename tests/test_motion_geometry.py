@@ -5,7 +5,7 @@ What is checked, against what:
 * proper motion to the date against astropy ``SkyCoord.apply_space_motion``
   (reference library; no distance given) to 0.01 mas;
 * rectilinear extrapolation against hand-computed straight-line motion
-  (USNO rectilinear elements, x = x0 + v t; methods-reference section 7), and
+  (USNO rectilinear elements, x = x0 + v t; docs/methods.md section 7), and
   the growth of its uncertainty with time (model stated in the module,
   common practice, no source);
 * pair_geometry on the bundled real sample (USNO ORB6 + WDS rows): the
@@ -117,6 +117,13 @@ def test_contract_columns_and_alignment(sample, geo):
     assert set(geo["method"]) <= {"orbit", "orbit-interferometric", "linear", "last", "none"}
     ok = geo["rho_arcsec"].notna()
     assert (geo.loc[ok, "rho_arcsec"] >= 0).all()
+    # a separation without a catalogued angle (BSC5 multiple-star fields, docs/names.md) has
+    # theta NaN; every other row with rho has theta in [0, 360)
+    no_angle = ok & geo["theta_deg"].isna()
+    assert (sample.pairs.loc[no_angle, "source"] == "bsc5").all()
+    assert sample.pairs.loc[no_angle, "pa_last_deg"].isna().all()
+    assert (geo.loc[no_angle, "method"] == "last").all() and geo.loc[no_angle, "theta_unc_deg"].isna().all()
+    ok &= ~no_angle
     assert geo.loc[ok, "theta_deg"].between(0, 360, inclusive="left").all()
     assert (geo.loc[ok, "rho_unc_arcsec"] > 0).all() and (geo.loc[ok, "theta_unc_deg"] > 0).all()
 

@@ -7,7 +7,7 @@ What is checked, against what:
   stays below 1e-12 rad for 0 <= e <= 0.999 and any M, including the hard
   corner of high e and small M;
 * E agrees with an independent root finder (scipy.optimize.brentq) on a grid;
-* Meeus (1998, Astronomical Algorithms, ch. 57, Example 57.a; methods-reference
+* Meeus (1998, Astronomical Algorithms, ch. 57, Example 57.a; docs/methods.md
   section 7): eta CrB at 1980.0 has M = 37.788 deg, E = 49.896 deg.
 """
 

@@ -6,10 +6,10 @@ Sources beside each check:
 * Meeus, J. 1998, Astronomical Algorithms 2nd ed., ch. 57, Example 57.a:
   eta CrB at 1980.0, theta = 318.4 deg, rho = 0.411" (printed precision);
   intermediate Thiele-Innes values A, B, F, G, x, y recomputed in the
-  project's methods-reference section 7 (tagged [D] there, 4 decimals).
-* Retrograde check values (methods-reference section 7, [D]).
+  docs/methods.md section 7 (tagged [D] there, 4 decimals).
+* Retrograde check values (docs/methods.md section 7, [D]).
 * Rigorous precession: IAU 1976 precession matrix from erfa (``pmat76``),
-  also compared with the methods-reference check values.
+  also compared with the docs/methods.md check values.
 * Besselian year of an astropy Time: astropy's own ``Time.byear``.
 """
 
@@ -35,7 +35,7 @@ def frame(**over):
 
 class TestEtaCrBMeeus:
     def test_thiele_innes_constants(self):
-        # methods-reference section 7 [D]: A = -0.5165, B = -0.5540, F = 0.6768, G = -0.0938 (4 decimals)
+        # docs/methods.md section 7 [D]: A = -0.5165, B = -0.5540, F = 0.6768, G = -0.0938 (4 decimals)
         A, B, F, G = thiele_innes(0.907, 59.025, 23.717, 219.907)
         assert A == pytest.approx(-0.5165, abs=6e-5)
         assert B == pytest.approx(-0.5540, abs=6e-5)
@@ -44,18 +44,18 @@ class TestEtaCrBMeeus:
 
     def test_position_1980(self):
         pos = orbit_positions(frame(), 1980.0, precession="none").iloc[0]
-        # methods-reference section 7 [D]: x = +0.3075, y = -0.2728 (north, east)
+        # docs/methods.md section 7 [D]: x = +0.3075, y = -0.2728 (north, east)
         assert pos.x_north_arcsec == pytest.approx(0.3075, abs=6e-5)
         assert pos.y_east_arcsec == pytest.approx(-0.2728, abs=6e-5)
         # Meeus 1998 Ex. 57.a: theta = 318.4 deg, rho = 0.411" (printed to 0.1 deg, 0.001")
         assert pos.theta_deg == pytest.approx(318.4, abs=0.05)
         assert pos.rho_arcsec == pytest.approx(0.411, abs=0.0005)
-        # methods-reference [D] to more places: 318.424, 0.4110
+        # docs/methods.md [D] to more places: 318.424, 0.4110
         assert pos.theta_deg == pytest.approx(318.424, abs=0.0005)
         assert pos.status == "ok" and pos.reason == ""
 
     def test_retrograde_moves_theta_backwards(self):
-        # methods-reference section 7 [D]: i = 120.975 -> theta 89.01 (1980.0) -> 71.47 (1981.0);
+        # docs/methods.md section 7 [D]: i = 120.975 -> theta 89.01 (1980.0) -> 71.47 (1981.0);
         # direct orbit 318.42 -> 335.96
         retro = frame(incl_deg=120.975)
         t80 = orbit_positions(retro, 1980.0, precession="none").theta_deg.iloc[0]
@@ -93,7 +93,7 @@ def test_properties_rho_theta_range_and_period(el, t):
 @given(el=elements, t=st.floats(1900.0, 2100.0))
 def test_property_sense_of_motion_follows_inclination(el, t):
     # i < 90: theta increases with time (direct); i > 90: decreases (retrograde)
-    # (methods-reference section 7; Heintz 1978). Checked through the angular momentum
+    # (docs/methods.md section 7; Heintz 1978). Checked through the angular momentum
     # sign x dy/dt - y dx/dt, from a short central difference.
     if abs(el["incl_deg"] - 90.0) < 1.0:
         return
@@ -191,13 +191,13 @@ def _rigorous_pa_change(ra_deg, dec_deg, years, theta0_deg=0.0):
 
 
 @pytest.mark.parametrize("ra, dec, published_rigorous, published_formula", [
-    (90.0, 0.0, 0.2783, 0.2785),     # methods-reference section 7 [D], over 50 yr
+    (90.0, 0.0, 0.2783, 0.2785),     # docs/methods.md section 7 [D], over 50 yr
     (270.0, 45.0, -0.3936, -0.3939),
     (45.0, 80.0, 1.162, 1.134),      # formula degrades near the pole
 ])
 def test_precession_formula_against_erfa(ra, dec, published_rigorous, published_formula):
     rig = _rigorous_pa_change(ra, dec, 50.0)
-    # erfa IAU 1976 reproduces the methods-reference rigorous value (printed to 4 / 3 decimals)
+    # erfa IAU 1976 reproduces the docs/methods.md rigorous value (printed to 4 / 3 decimals)
     assert rig == pytest.approx(published_rigorous, abs=0.001)
     f = float(precession_pa_deg(ra, dec, 50.0))
     assert f == pytest.approx(published_formula, abs=0.0001)

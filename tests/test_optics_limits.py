@@ -1,6 +1,6 @@
 """Validation of the diffraction limits and the (obstructed) Airy pattern.
 
-Reference values: /work/shared/docs/methods-reference.md section 1.  Its tables are
+Reference values: docs/methods.md section 1.  Its tables are
 [D] computations from the stated closed forms (Airy 1835; annular pupil, Born &
 Wolf 8.5; encircled energy, Rayleigh 1881); here they are recomputed by our code
 and compared to the printed digits.
@@ -31,7 +31,7 @@ from planner.optics.limits import (
 
 
 def test_dark_ring_radii_are_zeros_of_j1():
-    # methods-reference 1 [D]: J1 zeros / pi = 1.21967, 2.23313, 3.23832 lambda/D;
+    # docs/methods.md section 1 [D]: J1 zeros / pi = 1.21967, 2.23313, 3.23832 lambda/D;
     # independent oracle: scipy.special.jn_zeros
     got = dark_ring_radii_lod(3)
     np.testing.assert_allclose(got, [1.21967, 2.23313, 3.23832], atol=1e-5)
@@ -39,7 +39,7 @@ def test_dark_ring_radii_are_zeros_of_j1():
 
 
 def test_rayleigh_limit_in_arcsec():
-    # methods-reference 1 [D]: r1 = 138.4"/D[mm] at 550 nm; 1.384" at 100 mm, 0.692" at 200 mm
+    # docs/methods.md section 1 [D]: r1 = 138.4"/D[mm] at 550 nm; 1.384" at 100 mm, 0.692" at 200 mm
     assert rayleigh_limit_arcsec(1.0) == pytest.approx(138.4, abs=0.05)
     assert rayleigh_limit_arcsec(100) == pytest.approx(1.384, abs=5e-4)
     assert rayleigh_limit_arcsec(200) == pytest.approx(0.692, abs=5e-4)
@@ -48,13 +48,13 @@ def test_rayleigh_limit_in_arcsec():
 
 
 def test_dawes_limit():
-    # Dawes 1867 via methods-reference 1 [S]: 4.56"/inch = 115.8"/D[mm]; 1.158" at 100 mm
+    # Dawes 1867 via docs/methods.md section 1 [S]: 4.56"/inch = 115.8"/D[mm]; 1.158" at 100 mm
     assert dawes_limit_arcsec(100) == pytest.approx(1.158, abs=5e-4)
     assert dawes_limit_arcsec(25.4) == pytest.approx(4.56, abs=1e-9)
 
 
 def test_sparrow_limit():
-    # methods-reference 1 [D]: Sparrow 0.9472 lambda/D, 1.074" at 100 mm, 550 nm;
+    # docs/methods.md section 1 [D]: Sparrow 0.9472 lambda/D, 1.074" at 100 mm, 550 nm;
     # recomputed here from its definition (zero second derivative at the midpoint)
     assert sparrow_lod(0.0) == pytest.approx(0.9472, abs=1e-4)
     # (0.9472 x 1.1345" = 1.0745"; the table truncates to 1.074, hence 1e-3)
@@ -76,17 +76,17 @@ def test_limit_models_by_name():
 
 
 def test_bright_rings():
-    # methods-reference 2 [D]: ring maxima 1.6347, 2.6793, 3.6987, 4.7097 lambda/D at
+    # docs/methods.md section 2 [D]: ring maxima 1.6347, 2.6793, 3.6987, 4.7097 lambda/D at
     # 0.01750, 0.00416, 0.00160, 0.00078 of the peak
     r, p = bright_ring_maxima(4)
     np.testing.assert_allclose(r, [1.6347, 2.6793, 3.6987, 4.7097], atol=1e-4)
     np.testing.assert_allclose(p, [0.01750, 0.00416, 0.00160, 0.00078], atol=6e-6)
-    # first bright ring at 1.75 % of the peak (methods-reference 1)
+    # first bright ring at 1.75 % of the peak (docs/methods.md section 1)
     assert p[0] == pytest.approx(0.0175, abs=5e-5)
 
 
 def test_dips_at_rayleigh_and_dawes():
-    # methods-reference 1 [D]: midpoint at 0.7350 of the peak at the Rayleigh separation
+    # docs/methods.md section 1 [D]: midpoint at 0.7350 of the peak at the Rayleigh separation
     # (dip 26.5 %); dip 3.2 % at the Dawes separation (1.021 lambda/D at 550 nm)
     assert midpoint_dip(1.21967) == pytest.approx(0.265, abs=5e-4)
     assert midpoint_dip(dawes_limit_arcsec(100) / rayleigh_limit_arcsec(100) * 1.21967) == pytest.approx(0.032, abs=5e-4)
@@ -95,19 +95,19 @@ def test_dips_at_rayleigh_and_dawes():
 
 
 def test_airy_fwhm():
-    # methods-reference 1 [D]: Airy FWHM 1.0290 lambda/D
+    # docs/methods.md section 1 [D]: Airy FWHM 1.0290 lambda/D
     assert airy_fwhm_lod() == pytest.approx(1.0290, abs=1e-4)
 
 
 def test_encircled_energy_clear():
-    # Rayleigh 1881 closed form via methods-reference 1 [D]: 0.8378 / 0.9099 / 0.9376
+    # Rayleigh 1881 closed form via docs/methods.md section 1 [D]: 0.8378 / 0.9099 / 0.9376
     np.testing.assert_allclose(encircled_energy([1.21967, 2.23313, 3.23832]),
                                [0.8378, 0.9099, 0.9376], atol=1e-4)
     # the numerical path (used for eps > 0) agrees with the closed form at eps -> 0
     assert float(encircled_energy(1.21967, 1e-6)) == pytest.approx(0.8378, abs=1e-4)
 
 
-# methods-reference 1, table "Effect of central obstruction" [D]
+# docs/methods.md section 1, table "Effect of central obstruction" [D]
 OBSTRUCTION_TABLE = [
     # eps, 1st zero, 1st ring radius, ring I/I0, EE core, peak (equal flux), Rayleigh-sep dip, Sparrow
     (0.00, 1.2197, 1.6347, 0.0175, 0.838, 1.000, 0.265, 0.947),

@@ -1,4 +1,4 @@
-"""Published empirical rules for unequal pairs (methods-reference section 2).
+"""Published empirical rules for unequal pairs (docs/methods.md section 2).
 
 Only the arithmetic of the rules is checked against the worked example the
 reference gives; the rules are not ground truth.
@@ -13,7 +13,7 @@ from planner.optics.rules import lord_factor, peterson_factor, peterson_tlm
 
 
 def test_peterson_worked_example():
-    # Peterson 1954 (S&T Sept. 1954 p. 396) via methods-reference 2 [D]:
+    # Peterson 1954 (S&T Sept. 1954 p. 396) via docs/methods.md section 2 [D]:
     # D = 3 in, m2 = 10, base limit 1.5" -> TLM = 11.49, required separation 5.6"
     assert peterson_tlm(3 * 25.4) == pytest.approx(11.49, abs=0.005)
     assert 1.5 * peterson_factor(10.0, 3 * 25.4) == pytest.approx(5.6, abs=0.05)
@@ -39,7 +39,7 @@ def test_peterson_model_uses_physical_equal_pair_base():
 
 
 def test_lord_formula_with_user_index():
-    # Lord 1994 via methods-reference 2 [S, secondary]: S = 1.033 x 10^((|dm| - 0.1)/n) x rho
+    # Lord 1994 via docs/methods.md section 2 [S, secondary]: S = 1.033 x 10^((|dm| - 0.1)/n) x rho
     assert lord_factor(2.1, 2.0) == pytest.approx(1.033 * 10.0)
     got = required_separation_arcsec(100, [0.1, 2.1], model="lord1994", lord_n=2.0)
     np.testing.assert_allclose(got, [1.033 * 1.15824, 1.033 * 10 * 1.15824], rtol=1e-9)

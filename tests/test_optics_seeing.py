@@ -1,6 +1,6 @@
 """Validation of the seeing scalings and the Kolmogorov blur.
 
-Reference: methods-reference section 3 (ESO astroclimatology practice; Fried 1966;
+Reference: docs/methods.md section 3 (ESO astroclimatology practice; Fried 1966;
 Tokovinin 2002 as used in the ESO ETC).  Its check values are [D] computations from
 the stated formulas.
 """
@@ -20,21 +20,21 @@ from planner.optics.separability import star_profile
 
 
 def test_wavelength_and_airmass_scaling():
-    # methods-reference 3 [D]: (550/500)^-0.2 = 0.9811, 2^0.6 = 1.5157, 1.00" -> 1.487"
+    # docs/methods.md section 3 [D]: (550/500)^-0.2 = 0.9811, 2^0.6 = 1.5157, 1.00" -> 1.487"
     assert seeing_fwhm_arcsec(1.0, 1.0, 550) == pytest.approx(0.9811, abs=1e-4)
     assert seeing_fwhm_arcsec(1.0, 2.0, 500) == pytest.approx(1.5157, abs=1e-4)
     assert seeing_fwhm_arcsec(1.0, 2.0, 550) == pytest.approx(1.487, abs=1e-3)
 
 
 def test_fried_parameter():
-    # methods-reference 3 [D]: r0 = 10 cm -> 1.01"; 5 cm -> 2.02"; 20 cm -> 0.51" (500 nm)
+    # docs/methods.md section 3 [D]: r0 = 10 cm -> 1.01"; 5 cm -> 2.02"; 20 cm -> 0.51" (500 nm)
     np.testing.assert_allclose(seeing_from_r0_arcsec([0.10, 0.05, 0.20]), [1.01, 2.02, 0.51], atol=0.005)
     # r0 at 550 nm for 1.0" seeing (at 550 nm) -> 11.1 cm
     assert fried_r0_m(1.0, 550) == pytest.approx(0.111, abs=5e-4)
 
 
 def test_quadrature_and_outer_scale():
-    # methods-reference 3 [D]: D = 200 mm, 550 nm: FWHM_tel 0.584"; with 1.0" seeing 1.158"
+    # docs/methods.md section 3 [D]: D = 200 mm, 550 nm: FWHM_tel 0.584"; with 1.0" seeing 1.158"
     assert total_fwhm_arcsec(0.0, 200) == pytest.approx(0.584, abs=1e-3)
     assert total_fwhm_arcsec(1.0, 200) == pytest.approx(1.158, abs=1e-3)
     # von Karman factor, D = 0.2 m, L0 = 46 m, r0 = 0.1 m -> 0.928

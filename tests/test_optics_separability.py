@@ -5,12 +5,12 @@ What is checked, against what:
   pattern (Airy 1835; Born & Wolf 8.5) when there is no seeing;
 * an equal pair in perfect air reproduces the selected classical limit within 1 %
   (Dawes 1867 115.8"/D; Rayleigh 1.2197 lambda/D; Sparrow 1916 0.9472 lambda/D;
-  methods-reference section 1) -- the calibration promised in docs/optics.md;
+  docs/methods.md section 1) -- the calibration promised in docs/optics.md;
 * monotonicity in dm, seeing and airmass, and the stated effect of a central
-  obstruction (methods-reference 1, notes: helps equal pairs a little, hurts faint
+  obstruction (docs/methods.md section 1, notes: helps equal pairs a little, hurts faint
   companions);
 * the shipped table equals a fresh build of a few cells (so it cannot go stale);
-* the generalised-Sparrow figures of methods-reference 2 [D] are recovered by the
+* the generalised-Sparrow figures of docs/methods.md section 2 [D] are recovered by the
   dip part of the criterion.
 """
 
@@ -30,7 +30,7 @@ from planner.optics import separability as sep
 
 @pytest.mark.parametrize("eps", [0.0, 0.33, 0.5])
 def test_star_image_without_seeing_is_the_airy_pattern(eps):
-    # closed form I/I0 = [2J1(v)/v - eps^2 2J1(eps v)/(eps v)]^2/(1-eps^2)^2 (methods-reference 1)
+    # closed form I/I0 = [2J1(v)/v - eps^2 2J1(eps v)/(eps v)]^2/(1-eps^2)^2 (docs/methods.md section 1)
     r = np.linspace(0, 8, 801)
     np.testing.assert_allclose(sep.star_profile(r, eps, 0.0), airy_intensity(r, eps), atol=1e-5)
 
@@ -144,14 +144,14 @@ def test_raw_search_already_within_one_percent_before_normalisation():
 
 
 def test_calibration_dips():
-    # dip at the Dawes separation 3.2 %, at Rayleigh 26.5 % (methods-reference 1 [D])
+    # dip at the Dawes separation 3.2 %, at Rayleigh 26.5 % (docs/methods.md section 1 [D])
     assert sep.dip_threshold("dawes") == pytest.approx(0.032, abs=5e-4)
     assert sep.dip_threshold("rayleigh") == pytest.approx(0.265, abs=5e-4)
     assert sep.dip_threshold("sparrow") == 0.0
 
 
 def test_generalised_sparrow_from_methods_reference():
-    # methods-reference 2 [D] ("own computation"): the first distinct secondary maximum
+    # docs/methods.md section 2 [D] ("own computation"): the first distinct secondary maximum
     # appears at 1.11 (dm 0.5), 1.18 (dm 1), 1.22 (dm 2) lambda/D for a clear aperture.
     # Our dip-only search (delta = 0, no contrast requirement) on a fresh build:
     # (for dm 2.5-3 the reference quotes 1.41-1.46; our dip-only search lets the companion
@@ -198,7 +198,7 @@ def test_raw_table_monotone_fix_is_documented_size():
 
 
 def test_obstruction_helps_equal_pairs_slightly():
-    # methods-reference 1 notes: obstruction narrows the core (helps equal pairs a little)
+    # docs/methods.md section 1 notes: obstruction narrows the core (helps equal pairs a little)
     clear = required_separation_arcsec(200, 0.0, 0.0)
     for eps in (0.2, 0.33, 0.5):
         obstructed = required_separation_arcsec(200, 0.0, eps)
@@ -207,9 +207,9 @@ def test_obstruction_helps_equal_pairs_slightly():
 
 @pytest.mark.parametrize("seeing", [0.0, 0.3])
 def test_obstruction_hurts_faint_companions(seeing):
-    # methods-reference 1 notes: obstruction pushes light into the rings, hurting faint
+    # docs/methods.md section 1 notes: obstruction pushes light into the rings, hurting faint
     # companions.  Checked for dm >= 3 and every obstruction from 0.1 to 0.5 (small ones
-    # through the generalised-Sparrow floor of methods-reference 2; docs/optics.md lists the
+    # through the generalised-Sparrow floor of docs/methods.md section 2; docs/optics.md lists the
     # exceptions that remain for eps = 0.1 in seeing of 0.5-1").
     for dm in (3.0, 3.5, 4.0, 5.0, 6.0, 7.0, 8.0, 10.0):
         clear = required_separation_arcsec(200, dm, 0.0, seeing)
@@ -218,7 +218,7 @@ def test_obstruction_hurts_faint_companions(seeing):
 
 
 def test_unequal_floor_is_the_generalised_sparrow_curve():
-    # methods-reference section 2 [D]: a distinct secondary maximum first appears at
+    # docs/methods.md section 2 [D]: a distinct secondary maximum first appears at
     # 0.947, 1.11, 1.18, 1.22 and ~1.41-1.46 lambda/D for dm = 0, 0.5, 1, 2, 2.5-3 (clear
     # aperture) and at 0.909, 1.05, 1.09, 1.40, 1.47 for eps = 0.33 (dm 0, 0.5, 1, 2, 3);
     # recommended there as a hard floor.  In perfect air no criterion goes below it.

@@ -1,6 +1,6 @@
 """Limiting magnitude: Schaefer (1990) and the simple aperture laws.
 
-Reference values: methods-reference section 5, [D] computations from the stated
+Reference values: docs/methods.md section 5, [D] computations from the stated
 formulas (NELM table for S = 18..22; simple laws for D = 200 mm).
 """
 
@@ -13,12 +13,12 @@ from planner.optics.visibility_limit import naked_eye_limit, schaefer1990, sky_n
 
 
 def test_sky_brightness_in_nanolamberts():
-    # methods-reference 5 [D]: B(nL) = 34.08 x 10^(9 - 0.4 S)
+    # docs/methods.md section 5 [D]: B(nL) = 34.08 x 10^(9 - 0.4 S)
     np.testing.assert_allclose(sky_nanolambert([18, 20, 21, 21.5, 22]), [2150, 341, 136, 85.6, 54.0], rtol=3e-3)
 
 
 def test_naked_eye_limit_table():
-    # methods-reference 5 [D]: NELM = 7.93 - 5 log10(10^(4.316 - S/5) + 1), night branch
+    # docs/methods.md section 5 [D]: NELM = 7.93 - 5 log10(10^(4.316 - S/5) + 1), night branch
     got = naked_eye_limit([18, 20, 21, 21.5, 22], branch="night")
     np.testing.assert_allclose(got, [3.97, 5.49, 6.12, 6.38, 6.62], atol=0.006)
     # the model's own branch choice switches to the day branch above 10^3.17 nL
@@ -28,7 +28,7 @@ def test_naked_eye_limit_table():
 
 
 def test_simple_aperture_laws_for_200_mm():
-    # methods-reference 5 [D]: D = 200 mm: N = 8.8 -> 13.28; 10.7 -> 15.18; 9.1 -> 13.58;
+    # docs/methods.md section 5 [D]: D = 200 mm: N = 8.8 -> 13.28; 10.7 -> 15.18; 9.1 -> 13.58;
     # 16 + 5 log(D/1000) -> 12.51; Soviet form, 20 cm at 200x -> 14.51 (at the zenith here)
     expect = {"dimitroff-baker1945": 13.28, "sidgwick1971": 15.18, "peterson1954": 13.58,
               "stevenson": 12.51, "soviet-encyclopedia": 14.51}

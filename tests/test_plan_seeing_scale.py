@@ -1,7 +1,7 @@
 """The steadiness (1-10) to seeing (arcsec) table.
 
 The default table is an assumption of this project describing Pickering's
-ordinal scale (methods-reference section 3: 1-3 very poor ... 8-10 excellent);
+ordinal scale (docs/methods.md section 3: 1-3 very poor ... 8-10 excellent);
 the checks here are on its shape and on the override mechanism, not on
 published numbers (there are none for steps 4-10).
 """

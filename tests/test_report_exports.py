@@ -170,5 +170,5 @@ def test_pair_diagram_geometry():
     assert dx == pytest.approx(-2.0) and dy == pytest.approx(0.0, abs=1e-12)
     _, _, dx, dy = _pair_geometry(2.0, 0.0, 100.0)
     assert dx == pytest.approx(0.0, abs=1e-12) and dy == pytest.approx(2.0)
-    # Airy first dark ring 1.22 lambda/D: 138.4"/D[mm] at 550 nm (methods-reference s.1)
+    # Airy first dark ring 1.22 lambda/D: 138.4"/D[mm] at 550 nm (docs/methods.md section 1)
     assert airy_radius_arcsec(100.0) == pytest.approx(1.384, abs=0.001)

@@ -83,11 +83,11 @@ CASES = [
     ("limit-not-an-integer", [*NIGHT, "--aperture", "102", "--limit", "2.5"], 2, ["--limit", "'2.5'", "integer"]),
     ("aperture-list-not-numbers", ["apertures", "60", "abc", *DEMO], 2, ["sizes", "number"]),
     # -- telescope ---------------------------------------------------------------------------
-    ("aperture-zero", [*NIGHT, "--aperture", "0"], 2, ["aperture", "= 0", "10", "10000 mm"]),
+    ("aperture-zero", [*NIGHT, "--aperture", "0"], 2, ["aperture", " 0 is out of range", "10", "10000 mm"]),
     ("aperture-negative", [*NIGHT, "--aperture", "-50"], 2, ["aperture", "-50", "10000 mm"]),
     ("aperture-absurd", [*NIGHT, "--aperture", "1e6"], 2, ["aperture", "1e+06", "10000 mm"]),
     ("aperture-nan", [*NIGHT, "--aperture", "nan"], 2, ["aperture", "nan", "10000 mm"]),
-    ("obstruction-one", [*NIGHT, "--aperture", "102", "--obstruction", "1"], 2, ["obstruction", "= 1", "ratio"]),
+    ("obstruction-one", [*NIGHT, "--aperture", "102", "--obstruction", "1"], 2, ["obstruction", " 1 is out of range", "ratio"]),
     ("obstruction-negative", [*NIGHT, "--aperture", "102", "--obstruction", "-0.1"], 2,
      ["obstruction", "-0.1", "ratio"]),
     ("apertures-zero-in-list", ["apertures", "60", "0", "102", *DEMO], 2, ["aperture 0", "mm"]),
@@ -121,11 +121,11 @@ CASES = [
     ("apertures-range-bad-date", [*APS, "--to", "2026-02-30"], 2, ["2026-02-30", "YYYY-MM-DD"]),
     # -- air and schedule --------------------------------------------------------------------
     ("seeing-negative", [*NIGHT[:-4], "--catalog", "sample", "--aperture", "102", "--seeing", "-1"], 2,
-     ["seeing", "-1", "0-20"]),
+     ["seeing", "-1", "0 to 20"]),
     ("seeing-absurd", ["night", *DEMO_SITE, "--date", "2026-12-05", "--aperture", "102", "--seeing", "100"], 2,
-     ["seeing", "100", "0-20"]),
+     ["seeing", "100", "0 to 20"]),
     ("minutes-negative", [*NIGHT, "--aperture", "102", "--minutes", "-5"], 2, ["minutes", "-5", "240"]),
-    ("limit-negative", [*NIGHT, "--aperture", "102", "--limit", "-3"], 2, ["limit", "-3", "at least 1"]),
+    ("limit-negative", [*NIGHT, "--aperture", "102", "--limit", "-3"], 2, ["limit", "-3", "allowed 1 to"]),
     ("start-not-a-time", [*NIGHT, "--aperture", "102", "--start", "2x:00"], 2, ["2x:00", "HH:MM"]),
     # -- pair names and the year table ---------------------------------------------------
     ("pair-close-miss", ["pair", "STF2273"], 2, ["STF2273", "closest:", "STF 2272"]),

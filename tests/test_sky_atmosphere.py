@@ -2,7 +2,7 @@
 
 Checked against: pvlib's independent implementations of the same airmass
 models and of the standard-atmosphere pressure; the check tables of the
-project's methods reference (sections 4, 6 and 8), which were computed from
+project's docs/methods.md (sections 4, 6 and 8), which were computed from
 the published formulas; Bennett's published 5.39' at 10 deg (Meeus 1991);
 the Krisciunas & Schaefer (1991) check value 19.855 mag/arcsec^2 (specsim
 documentation).
@@ -33,7 +33,7 @@ def test_airmass_matches_pvlib(ours, pvlib_name):
     np.testing.assert_allclose(atm.airmass(alt, ours), theirs, rtol=1e-9)
 
 
-# methods reference section 4, check table [D] (z in deg -> X per model)
+# docs/methods.md section 4, check table [D] (z in deg -> X per model)
 AIRMASS_TABLE = [
     # z,   sec z,  Hardie,  Kasten-Young, Pickering
     (45, 1.4142, 1.4129, 1.4126, 1.4124),
@@ -55,7 +55,7 @@ def test_airmass_check_table(z, secz, hardie, ky, pick):
 
 
 def test_airmass_at_horizon_and_below():
-    """At the horizon Kasten-Young gives 37.92 and Pickering 38.75 (methods reference section 4);
+    """At the horizon Kasten-Young gives 37.92 and Pickering 38.75 (docs/methods.md section 4);
     below the horizon every model returns NaN (our convention: not observable)."""
     assert atm.airmass(0.0, "kastenyoung1989") == pytest.approx(37.92, abs=0.01)
     assert atm.airmass(0.0, "pickering2002") == pytest.approx(38.75, abs=0.01)
@@ -75,7 +75,7 @@ def test_bennett_published_value_at_10_deg():
     assert atm.refraction_arcmin(10.0, "bennett1982") == pytest.approx(5.39, abs=0.005)
 
 
-# methods reference section 4 [D]: altitude -> Bennett R(h_a), Saemundsson R(h)
+# docs/methods.md section 4 [D]: altitude -> Bennett R(h_a), Saemundsson R(h)
 REFRACTION_TABLE = [(0, 34.48, 28.98), (10, 5.39, 5.41), (20, 2.70, 2.74), (45, 0.995, 1.013)]
 
 
@@ -88,7 +88,7 @@ def test_refraction_check_table(h, bennett, saem):
 
 
 def test_refraction_zenith_clamped_and_models_agree():
-    """Bennett gives -0.001' at the zenith; clamped to 0 (methods reference note).  Meeus (1991,
+    """Bennett gives -0.001' at the zenith; clamped to 0 (docs/methods.md, section 4).  Meeus (1991,
     p. 103): Saemundsson(true h) agrees with Bennett(apparent h) to 0.1' -- checked over 1-90 deg."""
     assert atm.refraction_arcmin(90.0, "bennett1982") == 0.0
     h_true = np.linspace(1.0, 90.0, 300)
@@ -98,7 +98,7 @@ def test_refraction_zenith_clamped_and_models_agree():
 
 
 def test_refraction_pressure_temperature_factor():
-    """Meeus (1991) p. 103 factor (P/101 kPa)(283/(273+T)); methods reference: 1.012 at 95 kPa, -10 C.
+    """Meeus (1991) p. 103 factor (P/101 kPa)(283/(273+T)); docs/methods.md: 1.012 at 95 kPa, -10 C.
     pressure 0 (no air) gives no refraction."""
     r0 = atm.refraction_arcmin(20.0, "bennett1982")
     r = atm.refraction_arcmin(20.0, "bennett1982", pressure_hpa=950.0, temperature_c=-10.0)
@@ -137,7 +137,7 @@ def test_filippenko_refractivity_standard_value():
 
 def test_dispersion_ctio_table():
     """CTIO differential-refraction table (2 km site) at sec z = 2 relative to 500 nm:
-    R(400) - R(500) = 1.07", R(500) - R(650) = 0.75" (methods reference section 8, [S]);
+    R(400) - R(500) = 1.07", R(500) - R(650) = 0.75" (docs/methods.md section 8, [S]);
     Filippenko with P = 600 mmHg, T = 7 C gives 1.10" and 0.77" [D].  Tolerance 0.05"."""
     p_hpa = 600.0 * 1013.25 / 760.0
     assert atm.dispersion_arcsec(30.0, (400, 500), p_hpa, 7.0) == pytest.approx(1.07, abs=0.05)
@@ -155,7 +155,7 @@ def test_dispersion_sea_level_table(alt, wide, narrow):
 
 
 def test_dispersion_low_altitude_uses_bennett_scaling():
-    """Below 15 deg the Bennett-scaled form is used; methods reference section 8: 4.9" for
+    """Below 15 deg the Bennett-scaled form is used; docs/methods.md section 8: 4.9" for
     450-650 nm at 10 deg (vs 5.0" from tan z).  Tolerance 0.1"."""
     assert atm.dispersion_arcsec(10.0, (450, 650), 1013.25, 10.0) == pytest.approx(4.9, abs=0.1)
     assert np.isnan(atm.dispersion_arcsec(-2.0))
@@ -165,13 +165,13 @@ def test_dispersion_low_altitude_uses_bennett_scaling():
 
 def test_krisciunas_schaefer_check_value():
     """Krisciunas & Schaefer (1991): target z = 20, Moon z = 70, separation 50 deg, phase angle 45 deg,
-    k = 0.15 -> 19.855 mag/arcsec^2 (specsim documentation, methods reference section 6)."""
+    k = 0.15 -> 19.855 mag/arcsec^2 (specsim documentation, docs/methods.md section 6)."""
     b = atm.moon_sky_nl(50.0, 90.0 - 70.0, 90.0 - 20.0, 45.0, k=0.15)
     assert atm.mag_from_nl(b) == pytest.approx(19.855, abs=0.001)
 
 
 def test_sky_brightness_conversion():
-    """B[nL] = 34.08 exp(20.7233 - 0.92104 S): 21.0 -> 136 nL, 18.0 -> 2150 nL (methods reference section 5)."""
+    """B[nL] = 34.08 exp(20.7233 - 0.92104 S): 21.0 -> 136 nL, 18.0 -> 2150 nL (docs/methods.md section 5)."""
     assert atm.nl_from_mag(21.0) == pytest.approx(136, rel=0.005)
     assert atm.nl_from_mag(18.0) == pytest.approx(2150, rel=0.005)
     assert atm.mag_from_nl(atm.nl_from_mag(19.3)) == pytest.approx(19.3)  # exact inverse

@@ -3,7 +3,8 @@ sample and a user's own target list.  All return pandas DataFrames in the
 schemas of :mod:`planner.schema`.
 
 Public entry points (stable): :func:`read_wds`, :func:`read_orb6`,
-:func:`load_sample`; also :func:`load_catalog`, :func:`find_pair`,
+:func:`load_sample`; also :func:`load_catalog`, :func:`find_pair`, :func:`find_pairs`,
+:func:`pair_names`,
 :func:`read_target_list`, :func:`restrict`.  pandas is imported only when one
 of them is called.
 """
@@ -47,6 +48,30 @@ def find_pair(catalog, query):
     return _find(catalog, query)
 
 
+def find_pairs(catalog, text, limit_arcsec=None):
+    """Row labels of every pair named ``text`` (star name, catalogue number, WDS id
+    or designation), closest-to-splittable first; see
+    :func:`planner.catalogs.resolve.find_pairs`."""
+    from planner.catalogs.resolve import find_pairs as _find
+
+    return _find(catalog, text, limit_arcsec=limit_arcsec)
+
+
+def describe_name(catalog, text, online=False, limit_arcsec=None):
+    """What a name is (stars of the offline index, pairs of ``catalog``; with ``online``,
+    the CDS SIMBAD answer when the index has none); see :func:`planner.catalogs.resolve.describe`."""
+    from planner.catalogs.resolve import describe as _describe
+
+    return _describe(catalog, text, online=online, limit_arcsec=limit_arcsec)
+
+
+def pair_names(catalog, labels=None, rows=None):
+    """Common name and constellation of pair rows; see :func:`planner.catalogs.resolve.pair_names`."""
+    from planner.catalogs.resolve import pair_names as _names
+
+    return _names(catalog, labels, rows=rows)
+
+
 def read_target_list(path):
     """A user's CSV list of pairs; see :func:`planner.catalogs.userlist.read_target_list`."""
     from planner.catalogs.userlist import read_target_list as _read
@@ -61,5 +86,5 @@ def restrict(catalog, targets):
     return _restrict(catalog, targets)
 
 
-__all__ = ["read_wds", "read_orb6", "load_sample", "load_catalog", "find_pair",
+__all__ = ["read_wds", "read_orb6", "load_sample", "load_catalog", "find_pair", "find_pairs", "pair_names", "describe_name",
            "read_target_list", "restrict"]

@@ -30,6 +30,9 @@ from planner.errors import InputError, UnknownPairError
 from planner.schema import ORBIT_COLUMNS, PAIR_COLUMNS
 
 _DTYPES = {"float": "float64", "str": "str", "bool": "bool"}
+#: a BSC5 pair whose separation exceeds this many times the semi-major axis of an
+#: ORB6 orbit with the same WDS id and component key is a different pair
+BRIGHT_OTHER_PAIR_RATIO = 5.0
 
 
 @dataclass
@@ -115,11 +118,14 @@ def pairs_from_orbits(orbits: pd.DataFrame) -> pd.DataFrame:
 
 
 def merge(wds_pairs: pd.DataFrame | None, orbits: pd.DataFrame | None, source: str = "",
-          retrieved: str = "", problems: list | None = None) -> Catalog:
-    """WDS pairs plus ORB6 orbits as one :class:`Catalog`.
+          retrieved: str = "", problems: list | None = None,
+          bright_pairs: pd.DataFrame | None = None) -> Catalog:
+    """WDS pairs plus ORB6 orbits (plus BSC5 bright pairs) as one :class:`Catalog`.
 
     WDS rows win; ORB6 systems with no WDS row (same WDS id and component
-    key, see the module notes) are added from :func:`pairs_from_orbits`.
+    key, see the module notes) are added from :func:`pairs_from_orbits`;
+    ``bright_pairs`` (BSC5 rows, :func:`planner.catalogs.sample.read_bsc5_pairs`)
+    only where neither has that pair, so a pair with an ORB6 orbit keeps it.
     ``has_orbit`` is True where a complete grade 1-5 orbit matches.
     """
     if orbits is None:
@@ -135,7 +141,24 @@ def merge(wds_pairs: pd.DataFrame | None, orbits: pd.DataFrame | None, source: s
     if len(extra):
         ekey = extra["wds_id"] + "|" + component_key(extra["components"])
         extra = extra[~ekey.isin(set(wkey.tolist())).to_numpy()]
-    parts = [p for p in (w, extra) if len(p)]
+    if bright_pairs is not None and len(bright_pairs):
+        bkey = bright_pairs["wds_id"].astype(str) + "|" + component_key(bright_pairs["components"])
+        # an ORB6 pair with the same key but an orbit far smaller than the BSC5
+        # separation is another pair (e.g. 'zet UMa', a = 0.8", beside Mizar AB, 14"):
+        # both are kept; the orbit stays linked to its own row by designation
+        o_a = pd.Series(orbits["a_arcsec"].abs().to_numpy(float), index=okey.to_numpy())
+        o_a = o_a.groupby(level=0).max()
+        a_same = o_a.reindex(bkey.to_numpy()).to_numpy(float)
+        other_pair = np.isfinite(a_same) & (bright_pairs["sep_last_arcsec"].to_numpy(float)
+                                            > BRIGHT_OTHER_PAIR_RATIO * a_same)
+        taken = bkey.isin(set(wkey.tolist())).to_numpy().copy()
+        if len(extra):
+            taken |= bkey.isin(set((extra["wds_id"] + "|" + component_key(extra["components"])).tolist())
+                               ).to_numpy() & ~other_pair
+        bright = bright_pairs[~taken].assign(has_orbit=False)
+    else:
+        bright = bright_pairs if bright_pairs is not None else w.iloc[:0]
+    parts = [p for p in (w, extra, bright) if len(p)]
     pairs = pd.concat(parts, ignore_index=True) if parts else empty_table(PAIR_COLUMNS)
     pairs = pairs[[c.name for c in PAIR_COLUMNS]]
     pairs.attrs = {}
@@ -278,48 +301,66 @@ def _best_of(pairs: pd.DataFrame, idx) -> object:
     return order.index[0]
 
 
-def find_pair(catalog: Catalog, query: str):
-    """The index label of the pair named by ``query`` in ``catalog.pairs``.
-
-    Accepts a WDS id (``18055+0230``), a discoverer designation with or
-    without blanks and components (``STF2272AB``, ``STF 2272 AB``, ``stf2272``)
-    or another ORB6 name (``alp Cen``).  When a system has several pairs and
-    no components are given: the pair with a usable orbit, then the AB pair,
-    then the closest, then the brightest (see :func:`_best_of`).  Unknown
-    names raise :class:`planner.errors.UnknownPairError` with close matches.
-    """
+def designation_matches(catalog: Catalog, query: str) -> list:
+    """Row labels named by a WDS id (with optional components) or a discoverer
+    designation (with or without blanks and components; or another ORB6 name
+    such as ``alp Cen``): the whole system when no components are given,
+    best pair first (see :func:`_best_of`); [] when nothing matches."""
     pairs = catalog.pairs
     q = str(query).strip()
-    if not q:
-        raise InputError("empty pair name; give a WDS id such as 18055+0230 or a designation "
-                         "such as STF2272AB")
-    qn = _norm(q)
     m = re.match(r"^(\d{5}[+-]\d{4})\s*([A-Za-z].*)?$", q)
     if m:
         sel = pairs.index[(pairs["wds_id"] == m.group(1)).to_numpy()]
         if m.group(2):
             ck = component_key(pd.Series([m.group(2)])).iloc[0]
-            sel2 = [i for i in sel if component_key(pairs.loc[[i], "components"]).iloc[0] == ck]
-            if sel2:
-                return sel2[0]
-        elif len(sel):
-            return _best_of(pairs, sel)
-    else:
-        disc, full = _names(pairs, catalog)
-        hit = pairs.index[(full == qn).to_numpy()]
+            return [i for i, k in zip(sel, component_key(pairs.loc[sel, "components"])) if k == ck]
+        return _best_first(pairs, sel)
+    qn = _norm(q)
+    disc, full = _names(pairs, catalog)
+    hit = pairs.index[(full == qn).to_numpy()]
+    if len(hit):
+        return _best_first(pairs, hit)
+    hit = pairs.index[(disc == qn).to_numpy()]
+    if len(hit):
+        return _best_first(pairs, hit)
+    # "STF2272AB" where the components are spelt AB in the catalogue but blank in the
+    # query's system, or the plain pair given as "...AB"
+    if qn.endswith("AB"):
+        hit = pairs.index[((disc == qn[:-2]) & (component_key(pairs["components"]) == "AB")).to_numpy()]
         if len(hit):
-            return _best_of(pairs, hit)
-        hit = pairs.index[(disc == qn).to_numpy()]
-        if len(hit):
-            return _best_of(pairs, hit)
-        # "STF2272AB" where the components are spelt AB in the catalogue but blank in the
-        # query's system, or the plain pair given as "...AB"
-        if qn.endswith("AB"):
-            hit = pairs.index[((disc == qn[:-2]) & (component_key(pairs["components"]) == "AB"))
-                              .to_numpy()]
-            if len(hit):
-                return _best_of(pairs, hit)
-    raise UnknownPairError(q, suggest(catalog, q))
+            return _best_first(pairs, hit)
+    return []
+
+
+def _best_first(pairs: pd.DataFrame, idx) -> list:
+    idx = list(idx)
+    if len(idx) < 2:
+        return idx
+    best = _best_of(pairs, idx)
+    return [best] + [i for i in idx if i != best]
+
+
+def find_pair(catalog: Catalog, query: str):
+    """The index label of the pair named by ``query`` in ``catalog.pairs``.
+
+    Accepts a WDS id (``18055+0230``), a discoverer designation with or
+    without blanks and components (``STF2272AB``, ``STF 2272 AB``, ``stf2272``),
+    another ORB6 name (``alp Cen``), or any star name of the offline name index
+    (``Albireo``, ``eps Lyr``, ``70 Oph``, ``HD 165341``; see
+    :func:`planner.catalogs.resolve.find_pairs`).  When a system has several
+    pairs and no components are given: the pair with a usable orbit, then the
+    AB pair, then the closest, then the brightest (see :func:`_best_of`); for a
+    star name, the first of :func:`~planner.catalogs.resolve.find_pairs`.
+    Unknown names raise :class:`planner.errors.UnknownPairError` with close
+    matches, or say what a known star is when none of its pairs is loaded.
+    """
+    q = str(query).strip()
+    if not q:
+        raise InputError("empty pair name; give a name such as Albireo or 'eps Lyr', a WDS id "
+                         "such as 18055+0230 or a designation such as STF2272AB")
+    from planner.catalogs.resolve import find_pairs
+
+    return find_pairs(catalog, q)[0]
 
 
 def _suggest_pool(catalog: Catalog):

@@ -1,7 +1,7 @@
 """Reader for the text version of the USNO Sixth Catalog of Orbits of Visual
 Binary Stars (ORB6; Hartkopf, Mason & Worley 2001, AJ 122, 3472).
 
-Layout: ``/work/shared/reference/FORMATS.md`` section B (USNO
+Layout: the Sixth Orbit Catalog format (Hartkopf, Mason & Worley 2001, AJ 122, 3472; column layout in docs/catalogs.md) (USNO
 ``orb6format.txt`` plus the ruler lines of the file).  Every field is read by
 column range; the ranges are one or two columns wider than the published
 ones where the data show values starting early (errors of P, a, T; the two
@@ -39,11 +39,10 @@ import pandas as pd
 from planner.catalogs import _fixed as fx
 from planner.errors import CatalogError
 from planner.schema import ORBIT_COLUMNS
+from planner.utc import TROPICAL_YEAR_D, besselian_year_from_jd
 
 WIDTH = 264
 MIN_LENGTH = 234  # a line must at least reach the grade column
-TROPICAL_YEAR_D = 365.242198781
-B1900_JD = 2415020.31352
 
 PERIOD_FACTORS = {"y": 1.0, "d": 1.0 / TROPICAL_YEAR_D, "c": 100.0,
                   "h": 1.0 / 24.0 / TROPICAL_YEAR_D, "m": 1.0 / 1440.0 / TROPICAL_YEAR_D}
@@ -62,12 +61,6 @@ _NUMERIC = {
     "equinox": (223, 227), "year_last_obs": (228, 232),
     "grade": (233, 235), "ads": (46, 50),
 }
-
-
-def besselian_from_jd(jd):
-    """Besselian epoch of a Julian date: B = 1900.0 + (JD - 2415020.31352) / 365.242198781
-    (Lieske 1979, A&A 73, 282)."""
-    return 1900.0 + (np.asarray(jd, dtype=float) - B1900_JD) / TROPICAL_YEAR_D
 
 
 def _is_header(arr: np.ndarray, lines: list[bytes]) -> np.ndarray:
@@ -216,7 +209,7 @@ def parse_orb6_lines(lines: list[bytes], name: str = "<lines>") -> pd.DataFrame:
     t_raw, t_err_raw = nums["t_peri"][k], nums["t_peri_err"][k]
     t_yr = np.select(
         [t_unit == "d", t_unit == "m", t_unit == "c", t_unit == "y", t_unit == ""],
-        [besselian_from_jd(t_raw + 2400000.0), besselian_from_jd(t_raw + 2400000.5),
+        [besselian_year_from_jd(t_raw + 2400000.0), besselian_year_from_jd(t_raw + 2400000.5),
          t_raw * 100.0, t_raw, t_raw],
         default=np.nan,
     )

@@ -17,15 +17,22 @@ one line, :class:`planner.errors.NetworkError`; :func:`load_vizier` then
 falls back to the snapshot or to the bundled sample and says which on
 stderr.
 
-VizieR column labels: ``WDS``, ``Disc``, ``Comp``, ``pa2``, ``sep2``,
-``mag1``, ``mag2``, ``SpType``, ``pmRA1``, ``pmDE1``, ``RAJ2000``,
-``DEJ2000`` of B/wds/wds are seen in public code that queries VizieR; all the
-other labels below (first-epoch fields, secondary proper motion, DM, notes,
-and every ORB6 label and the ORB6 table name) are **unconfirmed**: the CDS
-ReadMe files were not available when this was written.  Each field therefore
-has a list of candidate labels; a field none of them matches stays empty,
-and :func:`fetch` reports which fields were missing.  The live test checks
-the labels against the service.
+VizieR column labels of ``B/wds/wds`` are checked against the CDS
+byte-by-byte description of the file ``wds.dat`` of B/wds (:data:`CDS_WDS_LABELS`;
+docs/catalogs.md): WDS, Disc, Comp, Obs1, Obs2, Nobs, pa1, pa2, sep1, sep2,
+mag1, mag2, SpType, pmRA1, pmDE1, pmRA2, pmDE2, DM, Notes, n_RAh ('!' = position
+derived from the WDS id) and the J2000 position, which VizieR serves as
+``RAJ2000``/``DEJ2000`` (its computed ``_RAJ2000``/``_DEJ2000`` also accepted).
+The DM numbers are kept (``dm_id``) for the name index.  The labels of the
+``B/orb6`` orbit table are **unconfirmed** (no CDS description of B/orb6 was
+found): each ORB6 field has a list of candidate labels; a field none of them
+matches stays empty, and :func:`fetch` reports which fields were missing.  The
+live test checks the labels against the service.
+
+Downloads go through astroquery's public API only
+(``Vizier.get_catalogs_async``, with astroquery's cache switched off through
+``astroquery.cache_conf``); while they run, a progress line on stderr (only
+when stderr is a terminal) shows the stage and the time elapsed.
 
 Acknowledgement: this uses the VizieR catalogue access tool, CDS,
 Strasbourg, France, and the WDS and ORB6 catalogues maintained at the US
@@ -45,8 +52,8 @@ import numpy as np
 import pandas as pd
 
 from planner.catalogs.catalog import Catalog, empty_table, merge, note
-from planner.catalogs.orb6 import (AXIS_FACTORS, PERIOD_FACTORS, TROPICAL_YEAR_D,
-                                   besselian_from_jd, mark_preferred, split_designation)
+from planner.catalogs.orb6 import AXIS_FACTORS, PERIOD_FACTORS, mark_preferred, split_designation
+from planner.utc import TROPICAL_YEAR_D, besselian_year_from_jd
 from planner.config.storage import atomic_write_bytes, atomic_write_text, user_dir
 from planner.catalogs._fixed import user_path as _user_path
 from planner.errors import CatalogError, NetworkError
@@ -61,16 +68,24 @@ MIN_ROWS = {"wds": 100_000, "orb6": 2_000}
 TIMEOUT_S = 120
 
 #: our field -> candidate VizieR labels (first present wins); see the module notes
+#: the labels of the CDS byte-by-byte description of B/wds file wds.dat (docs/catalogs.md)
+CDS_WDS_LABELS = ("WDS", "Disc", "Comp", "Obs1", "Obs2", "Nobs", "pa1", "pa2", "sep1", "sep2",
+                  "mag1", "mag2", "SpType", "pmRA1", "pmDE1", "pmRA2", "pmDE2", "DM", "Notes",
+                  "n_RAh", "RAh", "RAm", "RAs", "DE-", "DEd", "DEm", "DEs")
+#: how VizieR serves the sexagesimal J2000 position (RAh..DEs) and its own computed position
+VIZIER_POSITION_LABELS = ("RAJ2000", "DEJ2000", "_RAJ2000", "_DEJ2000")
+
 WDS_LABELS = {
     "wds_id": ["WDS"], "discoverer": ["Disc"], "components": ["Comp"],
-    "year_first": ["Obs1", "Date1", "Epoch1"], "year_last": ["Obs2", "Date2", "Epoch2"],
-    "n_obs": ["Nobs", "Obs"], "pa_first_deg": ["pa1"], "pa_last_deg": ["pa2"],
+    "year_first": ["Obs1"], "year_last": ["Obs2"],
+    "n_obs": ["Nobs"], "pa_first_deg": ["pa1"], "pa_last_deg": ["pa2"],
     "sep_first_arcsec": ["sep1"], "sep_last_arcsec": ["sep2"],
-    "mag1": ["mag1"], "mag2": ["mag2"], "mag1_flag": ["n_mag1"], "mag2_flag": ["n_mag2"],
+    "mag1": ["mag1"], "mag2": ["mag2"],
+    "mag1_flag": [], "mag2_flag": [],  # no magnitude-flag column in the CDS description: left empty
     "spectral_type": ["SpType"],
     "pm1_ra_masyr": ["pmRA1"], "pm1_dec_masyr": ["pmDE1"],
     "pm2_ra_masyr": ["pmRA2"], "pm2_dec_masyr": ["pmDE2"],
-    "dm_id": ["DM"], "note_flags": ["Notes", "n_WDS"],
+    "dm_id": ["DM"], "note_flags": ["Notes"], "coord_flag": ["n_RAh"],
     "ra": ["RAJ2000", "_RAJ2000"], "dec": ["DEJ2000", "_DEJ2000"],
 }
 ORB6_LABELS = {
@@ -154,7 +169,7 @@ def _angles(table, ra_labels, dec_labels, n):
 
 
 def _missing(table, labels: dict) -> list[str]:
-    return [k for k, labs in labels.items() if not any(lab in table.colnames for lab in labs)]
+    return [k for k, labs in labels.items() if labs and not any(lab in table.colnames for lab in labs)]
 
 
 # -- mapping --------------------------------------------------------------------
@@ -178,7 +193,9 @@ def wds_from_table(table) -> pd.DataFrame:
     # an id that is not a real position gives no position (never 0h +0 deg, never Dec > 90)
     ra_id, dec_id = np.where(ok, ra_id, np.nan), np.where(ok, dec_id, np.nan)
     ra, dec = _angles(table, WDS_LABELS["ra"], WDS_LABELS["dec"], n)
-    precise = np.isfinite(ra) & np.isfinite(dec)
+    # n_RAh = '!': the catalogue's position was itself derived from the WDS id
+    from_id = pd.Series(_txt(table, WDS_LABELS["coord_flag"], n)).astype(str).str.strip() == "!"
+    precise = np.isfinite(ra) & np.isfinite(dec) & ~from_id.to_numpy(bool)
     out["ra_deg"] = np.where(precise, ra, ra_id)
     out["dec_deg"] = np.where(precise, dec, dec_id)
     out["coord_precise"] = precise
@@ -235,7 +252,7 @@ def orb6_from_table(table) -> pd.DataFrame:
         t_code = np.full(n, "d")
     jd = np.where(t_raw > 1e6, t_raw, t_raw + 2400000.0)
     t_yr = np.select([t_code == "d", t_code == "m", t_code == "c"],
-                     [besselian_from_jd(jd), besselian_from_jd(t_raw + 2400000.5), t_raw * 100.0],
+                     [besselian_year_from_jd(jd), besselian_year_from_jd(t_raw + 2400000.5), t_raw * 100.0],
                      default=t_raw)
     t_ef = np.select([(t_code == "d") | (t_code == "m"), t_code == "c"],
                      [1.0 / TROPICAL_YEAR_D, 100.0], default=1.0)
@@ -339,16 +356,73 @@ def _progress(msg: str) -> None:
         print(f"splitplan: {msg}", file=sys.stderr, flush=True)
 
 
-def download(catalog: str) -> bytes:
-    """Raw VOTable bytes of every row and column of a VizieR catalogue."""
+class _Progress:
+    """A progress line on stderr while a download runs, redrawn every half second:
+    the stage bar (``[##--] 1/2``), what is being fetched and the seconds elapsed.
+    Nothing is printed when stderr is not a terminal."""
+
+    def __init__(self, stage: int, stages: int, what: str, stream=None):
+        self.stage, self.stages, self.what = stage, stages, what
+        self.stream = stream or sys.stderr
+        self.active = bool(getattr(self.stream, "isatty", lambda: False)())
+        self._stop = None
+        self._thread = None
+
+    def _line(self, elapsed: float, done: bool = False) -> str:
+        width = 20
+        filled = int(width * (self.stage - (0 if done else 1)) / self.stages)
+        bar = "#" * filled + "-" * (width - filled)
+        state = "done" if done else "downloading"
+        return f"\rsplitplan: [{bar}] {self.stage}/{self.stages} {state} {self.what} {elapsed:5.0f} s"
+
+    def __enter__(self):
+        if not self.active:
+            return self
+        import threading
+        import time
+
+        self._t0 = time.monotonic()
+        self._stop = threading.Event()
+
+        def run():
+            while not self._stop.wait(0.5):
+                self.stream.write(self._line(time.monotonic() - self._t0))
+                self.stream.flush()
+
+        self._thread = threading.Thread(target=run, daemon=True)
+        self._thread.start()
+        return self
+
+    def __exit__(self, *exc):
+        if not self.active:
+            return False
+        import time
+
+        self._stop.set()
+        self._thread.join()
+        self.stream.write(self._line(time.monotonic() - self._t0, done=exc[0] is None) + "\n")
+        self.stream.flush()
+        return False
+
+
+def download(catalog: str, stage: int = 1, stages: int = 1) -> bytes:
+    """Raw VOTable bytes of every row and column of a VizieR catalogue, through
+    astroquery's public ``Vizier.get_catalogs_async`` (astroquery's cache off)."""
     try:
+        from contextlib import nullcontext
+
         from astroquery.vizier import Vizier
 
+        try:
+            from astroquery import cache_conf
+
+            no_cache = cache_conf.set_temp("cache_active", False)
+        except ImportError:  # astroquery before cache_conf: the call below does not cache
+            no_cache = nullcontext()
         viz = Vizier(columns=["**"], row_limit=-1, catalog=catalog)
         viz.TIMEOUT = TIMEOUT_S
-        payload = viz.get_catalogs_async(catalog, get_query_payload=True)
-        resp = viz._request(method="POST", url=viz._server_to_url(return_type="votable"),
-                            data=payload, timeout=TIMEOUT_S, cache=False)
+        with no_cache, _Progress(stage, stages, catalog):
+            resp = viz.get_catalogs_async(catalog)
         resp.raise_for_status()
         return resp.content
     except NetworkError:
@@ -373,11 +447,11 @@ def fetch(store: bool = True) -> Catalog:
     """Download B/wds/wds and the B/orb6 orbit table, check them, store them as a
     new snapshot (the previous one stays if anything fails) and return the catalogue."""
     _progress(f"downloading {WDS_TABLE} from CDS VizieR (all rows; about 20 MB)...")
-    wds_bytes = download(WDS_CATALOG)
+    wds_bytes = download(WDS_CATALOG, 1, 2)
     wds_tables = parse_votable(wds_bytes, WDS_TABLE)
     wname = WDS_TABLE if WDS_TABLE in wds_tables else max(wds_tables, key=lambda k: len(wds_tables[k]))
     _progress(f"{len(wds_tables[wname])} rows of {wname}; downloading {ORB6_CATALOG}...")
-    orb_bytes = download(ORB6_CATALOG)
+    orb_bytes = download(ORB6_CATALOG, 2, 2)
     orb_tables = parse_votable(orb_bytes, ORB6_CATALOG)
     oname = _choose_orb6(orb_tables)
     counts = {"wds": len(wds_tables[wname]), "orb6": len(orb_tables[oname])}

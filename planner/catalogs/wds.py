@@ -1,6 +1,6 @@
 """Reader for the USNO Washington Double Star Catalog (WDS) summary file.
 
-Layout: ``/work/shared/reference/FORMATS.md`` section A (USNO
+Layout: the USNO WDS summary format (Mason et al., The Washington Double Star Catalog; column layout in docs/catalogs.md) (USNO
 ``wdsweb_format.txt``, 2009-2012 table): 130 columns, one pair per line.
 Text after column 130 is ignored; lines starting with ``#`` are comments;
 blank lines are skipped.

@@ -66,6 +66,48 @@ def fetch(a) -> None:
         print(f"note: VizieR {k.upper()} table has no column for: {', '.join(v)}", file=sys.stderr)
 
 
+def resolve_arguments(p) -> None:
+    p.add_argument("name", help="A star name, catalogue number, WDS id or designation (docs/names.md).")
+    p.add_argument("--catalog", "-c", default="sample", metavar="SOURCE",
+                   help="'sample' (bundled, the default), 'vizier' (your downloaded copy) or a file path.")
+    p.add_argument("--online", action="store_true",
+                   help="If the offline name index has no answer, ask the CDS SIMBAD name resolver "
+                        "(needs the network; answers are cached).")
+    p.add_argument("--json", dest="as_json", action="store_true", help="Print the answer as JSON.")
+
+
+def resolve(a) -> None:
+    """What a name is, and which pairs of the loaded catalogue it names."""
+    from planner.api import describe_name, load_catalog
+    from planner.errors import UnknownPairError
+
+    cat = load_catalog(a.catalog)
+    d = describe_name(cat, a.name, online=a.online)
+    p = cat.pairs
+    rows = [{"wds_id": str(p.at[lab, "wds_id"]), "designation": f"{p.at[lab, 'discoverer']} "
+             f"{p.at[lab, 'components']}".strip(), "source": str(p.at[lab, "source"])} for lab in d["pairs"]]
+    if a.as_json:
+        sys.stdout.write(json.dumps(dict(d, pairs=rows), indent=1, ensure_ascii=False, default=str) + "\n")
+        return
+    for s in d["stars"]:
+        ids = ", ".join(x for x in (f"HD {s['hd']}" if s["hd"] else "", f"HIP {s['hip']}" if s["hip"] else "",
+                                    f"SAO {s['sao']}" if s["sao"] else "",
+                                    f"ADS {s['ads']} {s['ads_components']}".strip() if s["ads"] else "",
+                                    s["dm"]) if x)
+        wds = f"; WDS {s['wds_id']} ({s['wds_id_from']})" if s["wds_id"] else ""
+        print(f"{s['label']}" + (f" ({ids})" if ids else "") + wds)
+    if d.get("online"):
+        o = d["online"]
+        print(f"{d['source']}: {o.get('main_id') or a.name}"
+              + (f", RA {o['ra_deg']:.5f} Dec {o['dec_deg']:+.5f}" if o.get("ra_deg") is not None else ""))
+    if rows:
+        print(f"pairs in {cat.source} (closest to splittable first):")
+        for r in rows:
+            print(f"  {r['wds_id']}  {r['designation']}  [{r['source']}]")
+    else:
+        raise UnknownPairError(a.name, d.get("suggestions") or [], message=d.get("message"))
+
+
 def import_arguments(p) -> None:
     p.add_argument("path", help="A WDS summary or ORB6 orbits text file.")
     p.add_argument("--orbits", metavar="FILE", help="An ORB6 orbits file to store with a WDS file.")
@@ -90,6 +132,9 @@ GROUP = Group("catalog", summary="The catalogues: what is loaded, download from 
     Command("fetch", arguments=lambda p: None, run=fetch,
             help="Download the full WDS and ORB6 from CDS VizieR and keep them as your local copy. "
                  "The previous copy is kept if the download fails or is incomplete."),
+    Command("resolve", arguments=resolve_arguments, run=resolve, usage="name",
+            help="Say what a star name or catalogue number is and which pairs of the loaded "
+                 "catalogue it names (offline; --online asks CDS SIMBAD when the name index has no answer)."),
     Command("import", arguments=import_arguments, run=import_, usage="path",
             help="Check a local catalogue file and, if it reads, store a copy as your local catalogue "
                  "(used with --catalog vizier)."),

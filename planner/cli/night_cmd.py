@@ -22,7 +22,7 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
                   catalog=None, minutes=None, limit=None, challenges=False, start=None, end=None,
                   share_margin=None, calibration=None, skip_done=False, prefer_new=False):
     """Turn command-line values into a :class:`planner.plan.model.NightRequest`."""
-    from planner.config import profiles
+    from planner.config import fields, profiles
     from planner.errors import InputError
     from planner.api import NightRequest
 
@@ -90,17 +90,15 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
                "ra_from_h": ra_from, "ra_to_h": ra_to, "orbits_only": True if orbits_only else None,
                "targets": str(Path(targets).resolve()) if targets else None}
     filters = {k: v for k, v in filters.items() if v is not None}
-    for k in ("ra_from_h", "ra_to_h"):
-        if k in filters and not 0 <= filters[k] <= 24:
-            raise InputError(f"--{k[:-2].replace('_', '-')} {filters[k]} must be an hour of RA, 0-24")
     check_filters(filters)
-    if share_margin is not None and not 0.5 <= share_margin <= 10:
-        raise InputError(f"--share-margin {share_margin:g} must be a margin between 0.5 and 10 (default 1.5)")
+    if share_margin is not None:
+        fields.check("share_margin", share_margin, "--share-margin")
     if "targets" in filters and not Path(filters["targets"]).is_file():
         raise InputError(f"target list {targets} does not exist or is not a file")
     req = NightRequest(site=site_d, scopes=scopes, site_name=site_name, date=date,
-                       seeing_arcsec=seeing, steadiness=steadiness, darkness=darkness or "nautical",
-                       catalog=catalog or "sample", minutes=10.0 if minutes is None else minutes, limit=limit,
+                       seeing_arcsec=seeing, steadiness=steadiness, darkness=darkness or fields.DEFAULT_DARKNESS,
+                       catalog=catalog or "sample", minutes=fields.DEFAULT_MINUTES if minutes is None else minutes,
+                       limit=limit,
                        challenges=bool(challenges), start_local=start, end_local=end, filters=filters)
     if share_margin is not None:
         req.share_margin = share_margin
@@ -110,27 +108,31 @@ def build_request(*, site=None, lat=None, lon=None, elevation=None, tz=None, min
     return req
 
 
-def check_filters(filters: dict) -> None:
-    """One-line usage errors for filters that could only ever select nothing."""
-    import math
+#: the command-line option of each filter field, for messages
+FILTER_OPTIONS = {"mag_max": "--mag-max", "mag2_max": "--mag2-max", "dm_max": "--dm-max", "sep_min_arcsec": "--sep-min",
+                  "sep_max_arcsec": "--sep-max", "ra_from_h": "--ra-from", "ra_to_h": "--ra-to",
+                  "constellations": "--constellation"}
 
+
+def check_filters(filters: dict) -> None:
+    """One-line usage errors, from the field table (planner.config.fields), for filter values out of
+    range or that could only ever select nothing (constellation names are checked by the plan)."""
+    from planner.config import fields
     from planner.errors import InputError
 
-    for key, opt_name in (("sep_min_arcsec", "--sep-min"), ("sep_max_arcsec", "--sep-max"), ("dm_max", "--dm-max")):
-        v = filters.get(key)
-        if v is not None and (not math.isfinite(v) or v < 0):
-            raise InputError(f"{opt_name} {v:g} must be 0 or more")
+    for key, value in filters.items():
+        if key in FILTER_OPTIONS:
+            fields.check(key, value, FILTER_OPTIONS[key])
     lo, hi = filters.get("sep_min_arcsec"), filters.get("sep_max_arcsec")
     if lo is not None and hi is not None and lo > hi:
         raise InputError(f"--sep-min {lo:g} is larger than --sep-max {hi:g}")
     if filters.get("constellations"):
-        from planner.api import constellation_abbreviations
+        from planner.api import constellation_abbreviation
 
-        known = constellation_abbreviations()
-        bad = [c for c in filters["constellations"] if c.lower() not in known]
+        bad = [c for c in filters["constellations"] if constellation_abbreviation(c) is None]
         if bad:
-            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation abbreviation "
-                             "(e.g. Cyg, UMa, Boo)")
+            raise InputError(f"--constellation {bad[0]!r} is not an IAU constellation (abbreviation "
+                             "or Latin name, e.g. Cyg, Cygnus, Cygni, UMa, Ursae Majoris)")
 
 
 OUT_FORMATS = (".csv", ".json", ".xml", ".vot", ".html", ".htm", ".pdf", ".txt")

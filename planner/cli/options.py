@@ -16,7 +16,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-DARKNESS = ("civil", "nautical", "astronomical")
+from planner.config.fields import DARKNESS, check
 
 #: option name -> (flags, add_argument keywords); help texts in our words
 SHARED = {
@@ -143,7 +143,5 @@ def air_values(args) -> dict:
 
 def check_darkness(value: str | None) -> None:
     """One-line usage error for an unknown darkness level."""
-    if value is not None and value not in DARKNESS:
-        from planner.errors import InputError
-
-        raise InputError(f"--darkness {value!r} is not one of {', '.join(DARKNESS)}")
+    if value is not None:
+        check("darkness", value, "--darkness")

@@ -20,7 +20,12 @@ TONIGHT = "Verdict tonight (needs a site and a telescope)"
 
 def arguments(p) -> None:
     p.add_argument("query",
-                   help="WDS id (18055+0230) or designation (STF2272AB, 'STF 2272 AB', STF2272).")
+                   help="A star name (Albireo, 'eps Lyr', 'ε¹ Lyr', '70 Oph', 'HD 165341', 'BD+27 3410'), "
+                        "a WDS id (18055+0230) or a designation (STF2272AB, 'STF 2272 AB', STF2272); "
+                        "see docs/names.md.")
+    p.add_argument("--online", action="store_true",
+                   help="If the offline name index does not know the name, ask the CDS SIMBAD name "
+                        "resolver (needs the network; answers are cached).")
     g = p  # the general options
     opt.catalog(g, "sample")
     g.add_argument("--date", metavar="YYYY-MM-DD",
@@ -66,7 +71,7 @@ def run(a) -> None:
     telescope are given."""
     import json
 
-    from planner.api import find_pair, load_catalog, pair_report, parse_years, resolve_epoch
+    from planner.api import find_pairs, find_pairs_online, load_catalog, pair_report, parse_years, resolve_epoch
     from planner.report.pair import plot_pair, render_text
     from planner.report.safe import terminal_text
 
@@ -82,9 +87,9 @@ def run(a) -> None:
         (plot,) = opt.check_outputs(a.force, plot=plot)
     catalog = load_catalog(a.catalog or "sample")
     skipped_lines_note(len(catalog.problems), a.catalog)
-    label = find_pair(catalog, a.query)
-    report = pair_report(label, catalog, epoch_yr, precession=a.precession, years=years,
-                         request=verdict_request(a))
+    labels = (find_pairs_online if a.online else find_pairs)(catalog, a.query)
+    report = pair_report(labels[0], catalog, epoch_yr, precession=a.precession, years=years,
+                         request=verdict_request(a), others=labels[1:])
     if plot is not None:
         written = plot_pair(report, plot, force=a.force)
         print(f"splitplan: wrote {written}", file=sys.stderr)

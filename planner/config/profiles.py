@@ -19,8 +19,9 @@ Two files in :func:`planner.config.storage.user_dir` ``('config')``:
     kind = "newtonian"          # optional: refractor, newtonian, sct, maksutov, ...
     focal_mm = 1200.0           # optional
 
-Every entry is validated on the way in (by building the sky engine's site and
-the optics telescope from it).  Writes are atomic; a file that fails to parse
+Every entry is validated on the way in, field by field, by the field table
+of :mod:`planner.config.fields` (the same checks as the command line and plan
+files).  Writes are atomic; a file that fails to parse
 is moved aside (quarantined) and reported, never overwritten.
 """
 
@@ -28,12 +29,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from planner.config.fields import SCOPE_FIELDS, SITE_FIELDS, check_mapping, existing_file
 from planner.errors import InputError, PlannerError
-
-SITE_FIELDS = {"lat_deg": float, "lon_deg": float, "elevation_m": float, "tz": str,
-               "min_alt_deg": float, "horizon_file": str, "note": str}
-SCOPE_FIELDS = {"aperture_mm": float, "obstruction": float, "kind": str,
-                "focal_mm": float, "wavelength_nm": float, "note": str}
 
 _KINDS = {"site": ("sites.toml", SITE_FIELDS), "scope": ("scopes.toml", SCOPE_FIELDS)}
 
@@ -66,18 +63,7 @@ def _save(kind: str, entries: dict[str, dict]) -> Path:
 
 
 def _clean(kind: str, fields: dict) -> dict:
-    allowed = _KINDS[kind][1]
-    out = {}
-    for k, v in fields.items():
-        if v is None:
-            continue
-        if k not in allowed:
-            raise InputError(f"unknown {kind} field {k!r}; allowed: {', '.join(allowed)}")
-        try:
-            out[k] = allowed[k](v)
-        except (TypeError, ValueError):
-            raise InputError(f"{kind} field {k}={v!r} is not a {allowed[k].__name__}") from None
-    return out
+    return check_mapping(kind, fields, _KINDS[kind][1])
 
 
 def _check_name(name: str) -> str:
@@ -99,20 +85,13 @@ def _check_name(name: str) -> str:
 
 
 def validate(kind: str, fields: dict) -> dict:
-    """Check a profile entry by building the real object from it; returns the cleaned dict."""
-    from planner.optics.telescope import Telescope
-    from planner.sky.site import Site
-
-    clean = _clean(kind, fields)
+    """Check a profile entry field by field; returns the cleaned dict."""
     if kind == "site":
-        for req in ("lat_deg", "lon_deg", "tz"):
-            if req not in clean:
-                raise InputError(f"a site needs {req}")
-        Site.from_mapping(clean)
+        clean = check_mapping("site", fields, SITE_FIELDS, required=("lat_deg", "lon_deg", "tz"))
+        if "horizon_file" in clean:
+            existing_file(clean["horizon_file"], "horizon file")
     else:
-        if "aperture_mm" not in clean:
-            raise InputError("a telescope needs aperture_mm")
-        Telescope.from_mapping(clean)
+        clean = check_mapping("scope", fields, SCOPE_FIELDS, required=("aperture_mm",))
     return clean
 
 

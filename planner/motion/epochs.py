@@ -26,9 +26,11 @@ import datetime as _dt
 
 import numpy as np
 
-#: JD of B1900.0 and the tropical year in days (Lieske 1979; SOFA ``epb``).
-JD_B1900 = 2415020.31352
-TROPICAL_YEAR_D = 365.242198781
+from planner.utc import besselian_year_from_jd, jd_from_besselian_year
+
+__all__ = ["besselian_year_from_jd", "jd_from_besselian_year", "julian_year_from_jd", "jd_from_datetime64",
+           "to_epoch_yr", "today_epoch_yr"]
+
 JD_J2000 = 2451545.0
 JULIAN_YEAR_D = 365.25
 _JD_UNIX_EPOCH = 2440587.5  # 1970-01-01T00:00 UTC
@@ -52,16 +54,6 @@ def check_epoch_yr(epoch_yr, what: str = "epoch"):
         raise InputError(f"{what} {first:g} is out of range; give a year from {EPOCH_MIN_YR:.0f} "
                          f"to {EPOCH_MAX_YR:.0f}, such as 2031.5")
     return epoch_yr
-
-
-def besselian_year_from_jd(jd):
-    """Besselian year for a Julian date (Lieske 1979; SOFA ``epb``)."""
-    return 1900.0 + (np.asarray(jd, dtype=float) - JD_B1900) / TROPICAL_YEAR_D
-
-
-def jd_from_besselian_year(year):
-    """Julian date of a Besselian year (inverse of :func:`besselian_year_from_jd`)."""
-    return JD_B1900 + (np.asarray(year, dtype=float) - 1900.0) * TROPICAL_YEAR_D
 
 
 def calendar_date_from_jd(jd) -> str:

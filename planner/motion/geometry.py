@@ -121,7 +121,7 @@ def linear_positions(rho_first, theta_first_deg, year_first, rho_last, theta_las
 
     Rectilinear motion x = x0 + vx (t - t0), y = y0 + vy (t - t0) as in the
     USNO catalogues of rectilinear elements (Hartkopf & Mason, LIN1/LIN2;
-    methods-reference section 7), here through the first and last catalogued
+    docs/methods.md section 7), here through the first and last catalogued
     measures only.  Motion test and uncertainty model: module docstring.
 
     Returns a DataFrame (positional index) with ``moving`` (bool),
@@ -320,7 +320,10 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
                            _num(pairs, "sep_last_arcsec"), _num(pairs, "pa_last_deg"), year_last, t,
                            _num(pairs, "n_obs"))
     moving = lin["moving"].to_numpy(bool)
-    measured = np.isfinite(_num(pairs, "sep_last_arcsec")) & np.isfinite(_num(pairs, "pa_last_deg"))
+    # a separation without a position angle (BSC5 multiple-star fields) is still a last
+    # measure: rho as catalogued, theta unknown (NaN)
+    measured = np.isfinite(_num(pairs, "sep_last_arcsec"))
+    no_theta = measured & ~np.isfinite(_num(pairs, "pa_last_deg"))
     last_rho = _num(pairs, "sep_last_arcsec")
     last_theta = _num(pairs, "pa_last_deg")
     rho = np.where(moving, lin["rho_arcsec"].to_numpy(float), last_rho)
@@ -328,6 +331,7 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
     rho_unc = lin["sigma_arcsec"].to_numpy(float, copy=True)
     theta_unc = np.where(moving, lin["theta_unc_deg"].to_numpy(float),
                          theta_unc_from(rho_unc, last_rho))
+    theta_unc = np.where(np.isfinite(theta), theta_unc, np.nan)
     method = np.full(n, "none", dtype=object)
     method[measured] = "last"
     method[moving] = "linear"
@@ -341,6 +345,7 @@ def pair_geometry(catalog, epoch_yr=None, precession: str = "j2000") -> pd.DataF
     reason = np.full(n, "no orbit and no measure", dtype=object)
     reason[measured & single] = "no orbit; last measure, motion unknown (single epoch)"
     reason[measured & ~single] = "no orbit; last measure (no significant motion between first and last measure)"
+    reason[no_theta] = "no orbit; last catalogued separation, position angle not catalogued"
     if moving.any():
         reason[moving] = _linear_reasons(speed[moving])
 

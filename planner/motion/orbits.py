@@ -10,7 +10,7 @@ Sources
   *Double Stars* (Reidel), ch. 4; Aitken, R. G. 1935, *The Binary Stars*;
   check values: Meeus, J. 1998, *Astronomical Algorithms* 2nd ed., ch. 57
   (eta CrB, Example 57.a).  Formulas as written in the project's
-  methods-reference section 7.
+  docs/methods.md section 7.
 * Kepler's equation: :mod:`planner.motion.kepler`.
 * Precession of the position angle, first order:
   ``d theta = 0.00557 deg x sin(alpha) sec(delta) x (t - t0)`` (annual
@@ -33,6 +33,8 @@ Conventions
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import pandas as pd
 
@@ -41,7 +43,7 @@ from planner.motion.kepler import solve_kepler
 from planner.units import wrap_public
 
 #: Annual precession in position angle per unit sin(alpha) sec(delta) [deg/yr]
-#: (n = 20.043"/yr; methods-reference section 7).
+#: (n = 20.043"/yr; docs/methods.md section 7).
 PRECESSION_RATE_DEG_PER_YR = 0.00557
 
 #: Grades (ORB6 column 234).
@@ -91,7 +93,7 @@ def _col(df: pd.DataFrame, name: str, default=np.nan) -> np.ndarray:
 def thiele_innes(a_arcsec, incl_deg, node_deg, omega_deg):
     """Thiele-Innes constants (A, B, F, G) [arcsec] from Campbell elements.
 
-    Source: Heintz (1978); Meeus (1998) ch. 57; methods-reference section 7::
+    Source: Heintz (1978); Meeus (1998) ch. 57; docs/methods.md section 7::
 
         A = a( cos w cos W - sin w sin W cos i)
         B = a( cos w sin W + sin w cos W cos i)
@@ -128,7 +130,7 @@ def precession_pa_deg(ra_deg, dec_deg, years):
 def orbit_xy(period_yr, t_peri_yr, ecc, A, B, F, G, epoch_yr):
     """Offsets (x north, y east) [arcsec] at ``epoch_yr``; all inputs broadcast.
 
-    Steps (methods-reference section 7): M = 2 pi (t - T) / P; Kepler for E;
+    Steps (docs/methods.md section 7): M = 2 pi (t - T) / P; Kepler for E;
     X = cos E - e; Y = sqrt(1 - e^2) sin E; x = A X + F Y; y = B X + G Y.
     """
     M = 2.0 * np.pi * (np.asarray(epoch_yr, dtype=float) - t_peri_yr) / period_yr
@@ -159,7 +161,20 @@ def _status(orbits: pd.DataFrame, el: dict) -> tuple[np.ndarray, np.ndarray]:
     return status, reason
 
 
-def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool):
+@dataclass(frozen=True)
+class _Prepared:
+    """What both position functions need per orbit row: elements, status, which rows to
+    use, the Thiele-Innes constants (A, B, F, G) and the equinox the PA is precessed from."""
+
+    el: dict
+    status: np.ndarray
+    reason: np.ndarray
+    use: np.ndarray
+    abfg: tuple
+    t0: np.ndarray
+
+
+def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool) -> _Prepared:
     if precession not in PRECESSION_MODELS:
         from planner.errors import InputError
 
@@ -169,7 +184,7 @@ def _prepare(orbits: pd.DataFrame, precession: str, astrometric: bool):
     use = (status == "ok") | (status == "interferometric") | ((status == "astrometric") & astrometric)
     A, B, F, G = thiele_innes(el["a_arcsec"], el["incl_deg"], el["node_deg"], el["omega_deg"])
     t0 = PRECESSION_MODELS[precession](orbits)
-    return el, status, reason, use, (A, B, F, G), t0
+    return _Prepared(el=el, status=status, reason=reason, use=use, abfg=(A, B, F, G), t0=t0)
 
 
 def _epochs_for_rows(epoch, n: int) -> np.ndarray:
@@ -217,7 +232,9 @@ def orbit_positions(orbits: pd.DataFrame, epoch, precession: str = "j2000",
     """
     n = len(orbits)
     t = _epochs_for_rows(epoch, n)
-    el, status, reason, use, (A, B, F, G), t0 = _prepare(orbits, precession, astrometric)
+    pr = _prepare(orbits, precession, astrometric)
+    el, status, reason, use, t0 = pr.el, pr.status, pr.reason, pr.use, pr.t0
+    A, B, F, G = pr.abfg
     x, y = orbit_xy(el["period_yr"], el["t_peri_yr"], el["ecc"], A, B, F, G, t)
     x = np.where(use, x, np.nan)
     y = np.where(use, y, np.nan)
@@ -254,7 +271,9 @@ def orbit_grid(orbits: pd.DataFrame, epochs, precession: str = "j2000",
     ``theta_deg`` (2-D) and ``status`` (1-D, per orbit).
     """
     t = np.atleast_1d(np.asarray(to_epoch_yr(epochs), dtype=float))
-    el, status, reason, use, (A, B, F, G), t0 = _prepare(orbits, precession, astrometric)
+    pr = _prepare(orbits, precession, astrometric)
+    el, status, reason, use, t0 = pr.el, pr.status, pr.reason, pr.use, pr.t0
+    A, B, F, G = pr.abfg
     col = lambda v: np.asarray(v)[:, None]  # noqa: E731
     x, y = orbit_xy(col(el["period_yr"]), col(el["t_peri_yr"]), col(el["ecc"]),
                     col(A), col(B), col(F), col(G), t[None, :])

@@ -14,7 +14,7 @@ Sources
 * Annular (centrally obstructed) pupil: Born & Wolf, *Principles of Optics*, 8.5/8.8.
 * Encircled energy 1 - J0^2 - J1^2: Rayleigh 1881.
 
-All check values are in /work/shared/docs/methods-reference.md section 1 and are
+All check values are in docs/methods.md section 1 and are
 re-derived in ``tests/test_optics_limits.py``.
 """
 
@@ -23,18 +23,17 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 from planner.units import wrap_public
 
-#: arcseconds per radian
-ARCSEC_PER_RAD = 206264.80624709636
 #: first zero of J1 divided by pi: radius of the first dark ring in lambda/D
 RAYLEIGH_LOD = 1.2196698912665045
 #: Sparrow separation of two equal Airy patterns, lambda/D (root of the midpoint
-#: second derivative, computed with scipy; methods-reference gives 0.9472)
+#: second derivative, computed with scipy; docs/methods.md gives 0.9472)
 SPARROW_LOD = 0.947155
 #: Dawes' empirical constant, arcsec x mm (4.56"/inch x 25.4 mm/inch)
 DAWES_ARCSEC_MM = 4.56 * 25.4
-#: Airy full width at half maximum, lambda/D (methods-reference section 1: 1.0290)
+#: Airy full width at half maximum, lambda/D (docs/methods.md section 1: 1.0290)
 AIRY_FWHM_LOD = 1.028993
 
 
@@ -102,16 +101,11 @@ def check_criterion(criterion: str) -> str:
     return key
 
 
-def limit_arcsec(aperture_mm, wavelength_nm=550.0, model: str = "dawes"):
-    """Classical equal-pair limit by name (``LIMIT_MODELS``: dawes, rayleigh, sparrow)."""
-    return LIMIT_MODELS[check_criterion(model)](aperture_mm, wavelength_nm)
-
-
 def criterion_lod(criterion: str, wavelength_nm=550.0) -> float:
     """The classical limit of ``criterion`` expressed in lambda/D at ``wavelength_nm``.
 
     Dawes is an arcsecond figure independent of wavelength; in lambda/D it is
-    1.021 at 550 nm (methods-reference section 1).
+    1.021 at 550 nm (docs/methods.md section 1).
     """
     key = check_criterion(criterion)
     if key == "rayleigh":
@@ -119,6 +113,11 @@ def criterion_lod(criterion: str, wavelength_nm=550.0) -> float:
     if key == "sparrow":
         return SPARROW_LOD
     return float(dawes_limit_arcsec(100.0) / lod_arcsec(100.0, wavelength_nm))
+
+
+def limit_arcsec(aperture_mm, wavelength_nm=550.0, model: str = "dawes"):
+    """Classical equal-pair limit by name (``LIMIT_MODELS``: dawes, rayleigh, sparrow)."""
+    return LIMIT_MODELS[check_criterion(model)](aperture_mm, wavelength_nm)
 
 
 def airy_radius_um(focal_length_mm, aperture_mm, wavelength_nm=550.0):
@@ -234,7 +233,7 @@ def midpoint_dip(separation_lod, obstruction=0.0, delta_mag=0.0) -> float:
     """Dip of the profile between two stars in perfect seeing: 1 - I(min) / I(fainter maximum).
 
     For an equal pair the minimum is at the midpoint and the maxima lie at or
-    slightly inside the star positions; methods-reference section 1 gives
+    slightly inside the star positions; docs/methods.md section 1 gives
     26.5 % at the Rayleigh separation and 3.2 % at the Dawes separation.
     Returns 0 when the profile has no separate maximum for the companion.
     """

@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from planner.config.fields import APERTURE_MAX_MM, APERTURE_MIN_MM
 from planner.errors import InputError
 from planner.optics.limits import LIMIT_MODELS, check_criterion
 from planner.optics.separability import (
@@ -124,9 +125,10 @@ def required_separation_arcsec(aperture_mm, delta_mag, obstruction=0.0, seeing_a
     if key not in SEPARATION_MODELS:
         raise InputError(f"model {model!r} is unknown; choose one of {', '.join(SEPARATION_MODELS)}")
     ap = np.asarray(aperture_mm, dtype=float)
-    if np.any(~((ap >= 10) & (ap <= 10000))):
-        raise InputError(f"aperture_mm = {float(ap[~((ap >= 10) & (ap <= 10000))].flat[0])!r} is not allowed; "
-                         "use a clear aperture between 10 and 10000 mm")
+    bad = ~((ap >= APERTURE_MIN_MM) & (ap <= APERTURE_MAX_MM))
+    if np.any(bad):
+        raise InputError(f"aperture_mm = {float(ap[bad].flat[0])!r} is not allowed; "
+                         f"use a clear aperture between {APERTURE_MIN_MM:g} and {APERTURE_MAX_MM:g} mm")
     eps = np.asarray(obstruction, dtype=float)
     if np.any(~((eps >= 0) & (eps < 1))):
         raise InputError(f"obstruction = {float(eps[~((eps >= 0) & (eps < 1))].flat[0])!r} is not allowed; "

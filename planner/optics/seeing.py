@@ -11,7 +11,7 @@ JOSA 56, 1372 (r0); 0.98 lambda / r0 (Dierickx 1992; used in DIMM reductions);
 long-exposure Kolmogorov transfer function exp(-3.44 (lambda f / r0)^(5/3))
 (Fried 1966); outer-scale (von Karman) factor: Tokovinin, A. 2002, PASP 114,
 1156, as used in the ESO exposure-time calculators.  Check values in
-methods-reference section 3.
+docs/methods.md section 3.
 """
 
 from __future__ import annotations
@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 from planner.units import wrap_public
 
 #: FWHM of the long-exposure Kolmogorov PSF in units of lambda / r0 (Dierickx 1992)
@@ -41,7 +42,7 @@ def seeing_fwhm_arcsec(seeing_arcsec, airmass=1.0, wavelength_nm=550.0):
 
     ``seeing_arcsec`` is the FWHM at 500 nm at the zenith.  Scaling
     X^0.6 lambda^-0.2 (ESO; Fried 1966).  Check: 1.00" at X = 2, 550 nm gives
-    1.00 x 0.9811 x 1.5157 = 1.487" (methods-reference section 3).
+    1.00 x 0.9811 x 1.5157 = 1.487" (docs/methods.md section 3).
     """
     s = _nonneg(seeing_arcsec, "seeing_arcsec", "a seeing FWHM in arcsec, 0 or more (e.g. 2)")
     x = np.asarray(airmass, dtype=float)
@@ -54,15 +55,11 @@ def seeing_fwhm_arcsec(seeing_arcsec, airmass=1.0, wavelength_nm=550.0):
 def fried_r0_m(seeing_arcsec, wavelength_nm=500.0):
     """Fried parameter r0 [m] for a long-exposure FWHM [arcsec] at ``wavelength_nm``:
     r0 = 0.98 lambda / FWHM (Fried 1966; Dierickx 1992)."""
-    from planner.optics.limits import ARCSEC_PER_RAD
-
     return FWHM_PER_LAMBDA_R0 * np.asarray(wavelength_nm) * 1e-9 / (np.asarray(seeing_arcsec) / ARCSEC_PER_RAD)
 
 
 def seeing_from_r0_arcsec(r0_m, wavelength_nm=500.0):
     """Long-exposure FWHM [arcsec] = 0.98 lambda / r0 (Fried 1966; Dierickx 1992)."""
-    from planner.optics.limits import ARCSEC_PER_RAD
-
     return FWHM_PER_LAMBDA_R0 * np.asarray(wavelength_nm) * 1e-9 / np.asarray(r0_m) * ARCSEC_PER_RAD
 
 
@@ -79,10 +76,10 @@ def von_karman_factor(aperture_m, outer_scale_m, r0_m):
 
 def total_fwhm_arcsec(seeing_fwhm, aperture_mm, wavelength_nm=550.0):
     """Quadrature sum of seeing and telescope FWHM (ESO ETC practice), with
-    FWHM_tel = 1.028 lambda/D.  Check: D = 200 mm, 1.0" -> 1.158"."""
-    from planner.optics.limits import lod_arcsec
+    FWHM_tel = 1.029 lambda/D (AIRY_FWHM_LOD).  Check: D = 200 mm, 1.0" -> 1.158"."""
+    from planner.optics.limits import AIRY_FWHM_LOD, lod_arcsec
 
-    tel = 1.028 * lod_arcsec(aperture_mm, wavelength_nm)
+    tel = AIRY_FWHM_LOD * lod_arcsec(aperture_mm, wavelength_nm)
     return np.hypot(np.asarray(seeing_fwhm, dtype=float), tel)
 
 

@@ -18,7 +18,7 @@ the product of two transfer functions:
 long-exposure blur is pessimistic for visual work.  The kernel used is the
 Kolmogorov long-exposure shape with its FWHM multiplied by
 ``steady_fraction`` k (default 0.6, an assumption inside the 0.5-0.7 range
-suggested in methods-reference section 3; to be fitted to observers' logs).
+suggested in docs/methods.md section 3; to be fitted to observers' logs).
 Dispersion, when given, is added to that blur in quadrature (an isotropic,
 crude stand-in for a blur that is really along the vertical).
 
@@ -334,14 +334,18 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
     if key == DEFAULT_CONTRAST:
         paths.append(shipped_table_path())
     from planner.config.storage import user_dir
+    from planner.errors import PlannerError
 
-    cache = user_dir("cache") / f"separability_v{TABLE_VERSION}_c{key:g}.npz"
-    paths.append(cache)
+    try:
+        cache = user_dir("cache") / f"separability_v{TABLE_VERSION}_c{key:g}.npz"
+        paths.append(cache)
+    except PlannerError:  # no cache folder (cannot be created): build in memory when needed
+        cache = None
     data = None
     for p in paths:
         if p.exists():
             try:
-                with np.load(p) as z:
+                with np.load(p, allow_pickle=False) as z:
                     data = {k: z[k] for k in z.files}
                 if int(data["version"]) != TABLE_VERSION:
                     data = None
@@ -361,7 +365,11 @@ def load_table(contrast: float = DEFAULT_CONTRAST) -> dict:
         data = build_table(contrast=key)
         buf = io.BytesIO()
         np.savez_compressed(buf, **data)
-        atomic_write_bytes(cache, buf.getvalue())
+        if cache is not None:
+            try:
+                atomic_write_bytes(cache, buf.getvalue())
+            except PlannerError:  # a cache that cannot be written only costs speed
+                pass
     data["_interp"] = {}
     for c, name in enumerate(data["criteria"]):
         tab = data["table"][c].astype(float)
@@ -451,7 +459,7 @@ def physical_separation_arcsec(aperture_mm, delta_mag, obstruction=0.0, seeing_a
 
 #: Floor for unequal pairs in perfect air, lambda/D: the separation at which the summed
 #: profile first shows a distinct secondary maximum ("generalised Sparrow"), computed in
-#: methods-reference section 2 [D] for a clear aperture and for eps = 0.33, and recommended
+#: docs/methods.md section 2 [D] for a clear aperture and for eps = 0.33, and recommended
 #: there as a hard floor.  Rows: dm; columns: eps = 0, 0.33 (dm 2.5 for eps = 0.33 is the
 #: mean of its neighbours; dm 2.5-3 for eps = 0 is the quoted "1.41-1.46").
 _FLOOR_DM = np.array([0.0, 0.5, 1.0, 2.0, 2.5, 3.0])
@@ -467,7 +475,7 @@ _FLOOR_LOD = np.array([[0.947, 0.909],
 def unequal_floor_lod(delta_mag, obstruction=0.0):
     """Smallest separation (lambda/D) at which a pair of magnitude difference ``delta_mag``
     shows as two stars at all, whatever the criterion, seeing or steadiness: the
-    generalised-Sparrow values of methods-reference section 2, interpolated linearly in dm
+    generalised-Sparrow values of docs/methods.md section 2, interpolated linearly in dm
     and in eps (held beyond dm = 3, where the rings and the contrast rule take over, and
     beyond eps = 0.33).  Never below the physical model's own table, only above it where the
     table's dip-and-contrast rule would let a faint companion show inside the first dark

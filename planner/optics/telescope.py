@@ -6,23 +6,15 @@ import math
 import warnings
 from dataclasses import dataclass, field
 
+from planner.config.fields import APERTURE_MAX_MM, APERTURE_MIN_MM, TELESCOPE_KINDS, check
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 from planner.units import convert_fields
 
-#: the apertures the tool accepts, mm (from small finders to the largest amateur instruments)
-APERTURE_MIN_MM = 10.0
-APERTURE_MAX_MM = 10000.0
+__all__ = ["Telescope", "KINDS", "APERTURE_MIN_MM", "APERTURE_MAX_MM"]
 
-KINDS = ("refractor", "newtonian", "sct", "maksutov", "cassegrain", "binocular", "other")
-#: other spellings accepted for ``kind``
-KIND_ALIASES = {
-    "reflector": "newtonian", "dobsonian": "newtonian", "dob": "newtonian", "newton": "newtonian",
-    "schmidt-cassegrain": "sct", "schmidt cassegrain": "sct", "edgehd": "sct",
-    "mak": "maksutov", "maksutov-cassegrain": "maksutov", "mct": "maksutov",
-    "rc": "cassegrain", "ritchey-chretien": "cassegrain", "classical cassegrain": "cassegrain",
-    "apo": "refractor", "achromat": "refractor", "lens": "refractor",
-    "binoculars": "binocular", "catadioptric": "other",
-}
+#: the accepted apertures and telescope kinds have one home, the field table of planner.config.fields
+KINDS = TELESCOPE_KINDS
 
 
 @dataclass(frozen=True)
@@ -57,6 +49,7 @@ class Telescope:
     def __post_init__(self):
         convert_fields(self)  # astropy Quantity fields (4 * u.imperial.inch) to the unit of their name
 
+        # aperture, obstruction, focal length, kind and wavelength: the field table's one validator
         def num(value, label, allowed):
             try:
                 v = float(value)
@@ -66,29 +59,15 @@ class Telescope:
                 raise InputError(f"{label} = {value!r} is not allowed; use {allowed}")
             return v
 
-        ap = num(self.aperture_mm, "aperture_mm", f"a clear aperture between {APERTURE_MIN_MM:g} and {APERTURE_MAX_MM:g} mm")
-        if not APERTURE_MIN_MM <= ap <= APERTURE_MAX_MM:
-            raise InputError(f"aperture_mm = {ap:g} is not allowed; use a clear aperture between "
-                             f"{APERTURE_MIN_MM:g} and {APERTURE_MAX_MM:g} mm")
-        object.__setattr__(self, "aperture_mm", ap)
-        eps = num(self.obstruction, "obstruction", "a diameter ratio from 0 up to (not including) 1, e.g. 0.33")
-        if not 0.0 <= eps < 1.0:
-            raise InputError(f"obstruction = {eps:g} is not allowed; use a diameter ratio from 0 up to "
-                             "(not including) 1, e.g. 0.33")
+        object.__setattr__(self, "aperture_mm", check("aperture_mm", self.aperture_mm, "aperture_mm"))
+        eps = check("obstruction", self.obstruction, "obstruction")
         if eps > 0.6:
             warnings.warn(f"obstruction {eps:g} is unusually large (above 0.6); check it is a diameter ratio",
                           stacklevel=3)
         object.__setattr__(self, "obstruction", eps)
         if self.focal_length_mm is not None:
-            f = num(self.focal_length_mm, "focal_length_mm", "a focal length in mm greater than 0")
-            if f <= 0:
-                raise InputError(f"focal_length_mm = {f:g} is not allowed; use a focal length in mm greater than 0")
-            object.__setattr__(self, "focal_length_mm", f)
-        kind = str(self.kind).strip().lower()
-        kind = KIND_ALIASES.get(kind, kind)
-        if kind not in KINDS:
-            raise InputError(f"kind = {self.kind!r} is unknown; choose one of {', '.join(KINDS)}")
-        object.__setattr__(self, "kind", kind)
+            object.__setattr__(self, "focal_length_mm", check("focal_mm", self.focal_length_mm, "focal_length_mm"))
+        object.__setattr__(self, "kind", check("kind", self.kind, "kind"))
         eps_mm = self.eyepieces_mm
         if isinstance(eps_mm, (int, float)):
             eps_mm = (eps_mm,)
@@ -104,10 +83,7 @@ class Telescope:
             if p <= 0:
                 raise InputError(f"pixel_um = {p:g} is not allowed; use a pixel size in micrometres greater than 0")
             object.__setattr__(self, "pixel_um", p)
-        lam = num(self.wavelength_nm, "wavelength_nm", "a wavelength between 200 and 5000 nm")
-        if not 200.0 <= lam <= 5000.0:
-            raise InputError(f"wavelength_nm = {lam:g} is not allowed; use a wavelength between 200 and 5000 nm")
-        object.__setattr__(self, "wavelength_nm", lam)
+        object.__setattr__(self, "wavelength_nm", check("wavelength_nm", self.wavelength_nm, "wavelength_nm"))
 
     @classmethod
     def from_mapping(cls, d, name: str = "") -> "Telescope":
@@ -143,8 +119,6 @@ class Telescope:
         """Sky angle of one camera pixel [arcsec] = 206.265 x pixel[um] / f[mm]."""
         if not self.has_camera:
             return None
-        from planner.optics.limits import ARCSEC_PER_RAD
-
         return self.pixel_um * 1e-3 / self.focal_length_mm * ARCSEC_PER_RAD
 
     def limit_arcsec(self, criterion: str = "dawes") -> float:

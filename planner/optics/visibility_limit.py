@@ -4,7 +4,7 @@ Models by name in :data:`MAG_LIMIT_MODELS`; all return the faintest star
 [V mag, outside the atmosphere] the observer can see.
 
 ``schaefer1990`` -- Schaefer, B. E. 1990, PASP 102, 212 ("Telescopic limiting
-magnitudes"), as laid out in methods-reference section 5.  The eye's threshold
+magnitudes"), as laid out in docs/methods.md section 5.  The eye's threshold
 illuminance follows Hecht's form I = C (1 + sqrt(K B))^2, B = background in
 nanolamberts seen at the eyepiece; night branch (log10 B < 3.17): C = 10^-9.8,
 K = 10^-1.9; day branch: C = 10^-8.35, K = 10^-5.9; m = -16.57 - 2.5 log10 I*.
@@ -28,7 +28,7 @@ min(1, (D/(M De))^2): magnification darkens the background once the exit
 pupil is smaller than the eye's.  B[nL] = 34.08 x 10^(9 - 0.4 S) with S the sky
 brightness in mag/arcsec^2 (moonlight and twilight included by the caller).
 With every factor 1 the model gives the naked-eye limit
-NELM = 7.93 - 5 log10(10^(4.316 - S/5) + 1) (derived, methods-reference 5).
+NELM = 7.93 - 5 log10(10^(4.316 - S/5) + 1) (derived, docs/methods.md section 5).
 
 The simple aperture laws m = N + 5 log10 D[inch] ignore sky, power and
 extinction; Schaefer (1990, eq. 1) calls them "correct to 1-2 mag".
@@ -49,7 +49,7 @@ DEFAULT_TRANSMISSION = 0.8   # whole optical train, common practice, no source
 
 def sky_nanolambert(sky_mag_arcsec2):
     """Sky brightness in nanolamberts from mag/arcsec^2: 34.08 x 10^(9 - 0.4 S)
-    (Schaefer 1990 via a secondary implementation; methods-reference 5)."""
+    (Schaefer 1990 via a secondary implementation; docs/methods.md section 5)."""
     s = np.asarray(sky_mag_arcsec2, dtype=float)
     return 34.08 * 10.0 ** (9.0 - 0.4 * s)
 
@@ -75,7 +75,7 @@ def _mag(illuminance):
 
 def naked_eye_limit(sky_mag_arcsec2, branch="auto"):
     """Naked-eye limit with every correction factor 1 (Schaefer 1990).
-    Check (methods-reference 5, night branch): S = 21.0 -> 6.12.  Skies brighter
+    Check (docs/methods.md section 5, night branch): S = 21.0 -> 6.12.  Skies brighter
     than about 18.4 mag/arcsec^2 (B > 10^3.17 nL) use the day branch unless
     ``branch='night'``."""
     return _mag(threshold_illuminance(sky_nanolambert(sky_mag_arcsec2), branch))

@@ -16,8 +16,9 @@ import datetime as _dt
 import numpy as np
 import pandas as pd
 
+from planner.config.fields import check
 from planner.errors import InputError
-from planner.optics.telescope import APERTURE_MAX_MM, APERTURE_MIN_MM, Telescope
+from planner.optics.telescope import Telescope
 from planner.plan.model import NightRequest
 from planner.plan.night import judge_scope, prepare
 from planner.plan.session import Session, parse_date, site_of
@@ -49,14 +50,10 @@ def compare_apertures(request: NightRequest, apertures_mm, date_to: str | None =
     and ``pairs`` (DataFrame of every pair split by the largest aperture with
     the smallest aperture that splits it, ``first_aperture_mm``).
     """
-    aps = sorted({float(a) for a in apertures_mm})
+    aps = sorted({check("aperture_mm", a) for a in apertures_mm})
     if not aps:
         raise InputError("give at least one aperture in mm, e.g. 60 80 102 127")
-    for a in aps:
-        if not APERTURE_MIN_MM <= a <= APERTURE_MAX_MM:
-            raise InputError(f"aperture {a:g} mm is outside {APERTURE_MIN_MM:g}-{APERTURE_MAX_MM:g} mm")
-    if int(nights) < 1:
-        raise InputError(f"--nights {nights} must be 1 or more")
+    nights = check("nights", nights, "--nights")
     start = parse_date(request.date, site_of(request))
     dates = _dates(start, date_to, nights)
     base_scope = dict(request.scopes[0]) if request.scopes else {}

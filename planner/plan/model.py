@@ -11,12 +11,15 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field, fields
 
-DARKNESS = ("civil", "nautical", "astronomical")
+from planner.config.fields import DARKNESS, DEFAULT_DARKNESS, DEFAULT_MINUTES
+from planner.errors import InputError
+
+__all__ = ["NightRequest", "NightPlan", "ScopePlan", "SCHEDULE_COLUMNS", "DARKNESS"]
 
 #: Columns of a schedule table (one row per scheduled pair), in display order.
 SCHEDULE_COLUMNS = (
     "section", "slot", "slot_start_utc", "slot_end_utc", "slot_local", "scope",
-    "wds_id", "discoverer", "components", "constellation", "ra_deg", "dec_deg",
+    "wds_id", "discoverer", "components", "name", "constellation", "ra_deg", "dec_deg",
     "rho_arcsec", "theta_deg", "method", "mag1", "mag2", "dm",
     "alt_deg", "az_deg", "airmass", "limit_arcsec", "margin", "chance", "verdict",
     "reason", "power_min", "power_max", "score", "best_utc", "sun_alt_deg", "flag", "user_note",
@@ -33,9 +36,9 @@ class NightRequest:
     date: str | None = None          # local date YYYY-MM-DD of the evening; None = tonight
     seeing_arcsec: float | None = None
     steadiness: float | None = None
-    darkness: str = "nautical"
+    darkness: str = DEFAULT_DARKNESS
     catalog: str = "sample"
-    minutes: float = 10.0
+    minutes: float = DEFAULT_MINUTES
     limit: int | None = None         # pairs per scope; None = as many as the window holds
     challenges: bool = False
     start_local: str | None = None   # HH:MM, cut the window

@@ -29,6 +29,7 @@ import pandas as pd
 from planner import __version__
 from planner.catalogs import read_target_list, restrict
 from planner.catalogs.catalog import Catalog, load_catalog
+from planner.catalogs.constellations import constellation as constellation_abbreviation
 from planner.errors import InputError
 from planner.motion import pair_geometry
 from planner.motion.epochs import to_epoch_yr
@@ -41,6 +42,7 @@ from planner.plan.score import score_pairs
 from planner.plan.session import Session
 from planner.sky.atmosphere import airmass
 from planner.sky.night import sun_alt_deg, sun_sep_deg
+from planner.sky.constellations import constellation_of
 from planner.sky.placement import FastAltAz, conditions_at, visibility
 from planner.verdict import judge
 
@@ -60,26 +62,6 @@ CAUTIONS = (
 
 
 # -- filters ------------------------------------------------------------------------
-
-def constellation_of(ra_deg, dec_deg) -> np.ndarray:
-    """IAU constellation abbreviation per position (astropy ``get_constellation``, vectorised)."""
-    from astropy.coordinates import SkyCoord, get_constellation
-
-    ra = np.asarray(ra_deg, float)
-    if ra.size == 0:
-        return np.array([], dtype=object)
-    c = SkyCoord(ra=ra, dec=np.asarray(dec_deg, float), unit="deg", frame="icrs")
-    return np.asarray(get_constellation(c, short_name=True), dtype=object)
-
-
-def constellation_abbreviations() -> set[str]:
-    """The 88 IAU constellation abbreviations, lower case (astropy's data file of
-    the IAU names, the same one ``get_constellation`` uses)."""
-    from importlib import resources
-
-    text = (resources.files("astropy.coordinates") / "data" / "constellation_names.dat").read_text()
-    return {ln.split()[0].lower() for ln in text.splitlines() if ln.strip() and not ln.startswith("#")}
-
 
 def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFrame:
     """Keep the rows that pass the user's filters (all vectorised)."""
@@ -107,9 +89,9 @@ def apply_filters(table: pd.DataFrame, filters: dict, catalog=None) -> pd.DataFr
         method = table["method"].astype(str).to_numpy()
         keep &= np.char.startswith(method.astype(str), "orbit")
     if f.get("constellations"):
-        wanted = {c.strip().lower() for c in f["constellations"]}
+        wanted = {(constellation_abbreviation(c) or c.strip()).lower() for c in f["constellations"]}
         cons = constellation_of(table["ra_deg"].to_numpy(float), table["dec_deg"].to_numpy(float))
-        keep &= np.array([c.lower() in wanted for c in cons], bool) if len(cons) else keep
+        keep &= np.isin(np.char.lower(cons.astype(str)), list(wanted)) if len(cons) else keep
     out = table[keep]
     if f.get("targets"):
         out = restrict_to_targets(out, f["targets"], catalog)
@@ -374,6 +356,23 @@ def _window_slots(window, minutes: float) -> int:
     return max(1, int(span_min // float(minutes)))
 
 
+def add_names(catalog, sched: pd.DataFrame) -> pd.DataFrame:
+    """The schedule with the pairs' common names (IAU proper name, Bayer, Flamsteed
+    or HR of the primary; :func:`planner.catalogs.pair_names`) and, where the name
+    index knows the star, its constellation."""
+    if not len(sched) or catalog is None:
+        return sched
+    from planner.catalogs import pair_names
+
+    nm = pair_names(catalog, rows=sched)
+    out = sched.copy()
+    out["name"] = nm["name"].to_numpy(object)
+    known = nm["constellation"].to_numpy(object) != ""
+    out["constellation"] = np.where(known, nm["constellation"].to_numpy(object),
+                                    out["constellation"].to_numpy(object))
+    return out
+
+
 def _slot_limit(request: NightRequest, window, challenge: bool = False) -> int:
     """Pairs per scope: ``request.limit`` if given (half of it for the near
     misses), else as many slots as the observing window holds (the near misses
@@ -422,6 +421,7 @@ def _finish_rows(session: Session, sec: Section, rows: pd.DataFrame, sched: pd.D
         "wds_id": rows["wds_id"].astype(str).to_numpy(),
         "discoverer": rows["discoverer"].astype(str).to_numpy(),
         "components": rows["components"].astype(str).to_numpy(),
+        "name": np.full(len(rows), "", dtype=object),  # filled by add_names
         "constellation": constellation_of(rows["ra_deg"], rows["dec_deg"]),
         "ra_deg": rows["ra_deg"].to_numpy(float),
         "dec_deg": rows["dec_deg"].to_numpy(float),
@@ -637,7 +637,7 @@ def plan_night(request: NightRequest, catalog=None, session: Session | None = No
         if assign is not None:
             shared_out = j.index[~j.index.isin(assign.get(name, [])) & ~j.index.isin(chal_assign.get(name, []))]
         j = j.assign(plan_status=plan_status(j, sched, cut, request.limit, request.challenges, shared_out))
-        sched = flag_done(sched.reset_index(drop=True), j)
+        sched = add_names(cat, flag_done(sched.reset_index(drop=True), j))
         n_all = int(((j["verdict"] == "split") & j["up"]).sum())
         n_near = int(((j["verdict"] == "challenge") & j["up"]).sum())
         when = "tonight" if not (request.start_local or request.end_local) else (

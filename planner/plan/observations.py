@@ -172,7 +172,7 @@ def calibration_for(logbook, telescope: dict, scope_name: str = ""):
 
 
 #: values of ``--calibration`` (and ``NightRequest.calibration``)
-CALIBRATIONS = ("published", "mine")
+from planner.config.fields import CALIBRATIONS  # noqa: E402  (the field table is its home)
 
 
 def calibrate(telescopes, mode: str | None, logbook=None):

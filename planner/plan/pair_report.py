@@ -133,10 +133,15 @@ def chosen_orbit(catalog, label, reference: str):
 
 def geometry_at(catalog, label, epoch_yr: float, precession: str = "j2000") -> dict:
     """rho, theta, method, uncertainty, the catalogued measures and the orbit of one pair at one epoch."""
+    from planner.catalogs import pair_names
+
     p = catalog.pairs.loc[label]
     g = pair_geometry(one_pair_catalog(catalog, label), epoch_yr, precession=precession).iloc[0]
+    star = pair_names(catalog, [label]).iloc[0]
     rep = {
         "wds_id": str(p["wds_id"]), "discoverer": str(p["discoverer"]), "components": str(p["components"]),
+        "name": str(star["name"]), "constellation": str(star["constellation"]),
+        "source": str(p.get("source", "")),
         "mag1": _clean(p.get("mag1")), "mag2": _clean(p.get("mag2")),
         "epoch_yr": float(epoch_yr), "jd": float(jd_from_besselian_year(epoch_yr)),
     }
@@ -185,12 +190,15 @@ def tonight_verdict(catalog, label, request) -> dict:
 
 
 def pair_report(catalog, label, epoch_yr: float, *, precession: str = "j2000", years=None,
-                request=None) -> PairReport:
+                request=None, others=()) -> PairReport:
     """The :class:`PairReport` of one pair (``label``: its row in ``catalog.pairs``) at
     ``epoch_yr``; ``years``: epochs for a table (or None); ``request``: a
     :class:`~planner.plan.model.NightRequest` with the site, one telescope and the
     evening for the verdict (or None)."""
     geometry = geometry_at(catalog, label, epoch_yr, precession)
+    op = catalog.pairs.loc[[o for o in others if o != label]]
+    geometry["other_pairs"] = [f"{r.discoverer} {r.components}".strip() + f" ({r.wds_id})"
+                               for r in op.itertuples()]
     tonight = tonight_verdict(catalog, label, request) if request is not None else None
     table = year_table(catalog, label, years, precession) if years is not None else None
     orbit = chosen_orbit(catalog, label, geometry["orbit_reference"] or "")

@@ -18,10 +18,13 @@ import datetime as _dt
 import numpy as np
 import pandas as pd
 
+from planner.config.fields import (DEFAULT_SEEING_ARCSEC, SCOPE_FIELDS, SITE_FIELDS, check,
+                                   check_filters, check_mapping)
 from planner.config.seeing_scale import load_scale, steadiness_to_seeing
 from planner.errors import InputError
 from planner.optics.telescope import Telescope
-from planner.plan.model import DARKNESS, NightRequest
+from planner.plan.model import NightRequest
+from planner.catalogs.constellations import constellation
 from planner.sky.night import Night, night_for
 from planner.sky.site import Site
 
@@ -57,14 +60,9 @@ class Session:
     @classmethod
     def from_request(cls, request: NightRequest, need_scopes: bool = True) -> "Session":
         """Check ``request`` and build the session (the request itself is left as it is)."""
-        if request.darkness not in DARKNESS:
-            raise InputError(f"darkness {request.darkness!r} is not one of {', '.join(DARKNESS)}")
-        if not (0 < float(request.minutes) <= 240):
-            raise InputError(f"minutes per target {request.minutes!r} must be between 1 and 240")
-        if request.limit is not None and int(request.limit) < 1:
-            raise InputError(f"limit {request.limit!r} must be at least 1 (leave it out to fill the night)")
         if need_scopes and not request.scopes:
             raise InputError("no telescope given; use --aperture MM or --scope NAME")
+        request = checked(request)
         seeing, seeing_origin = resolve_seeing(request)
         site = site_of(request)
         local_date = parse_date(request.date, site)
@@ -106,6 +104,29 @@ class Session:
                                    dark_end_utc=np.datetime64(b, "ns"))
 
 
+#: the request's scalar fields checked by the field table (planner.config.fields)
+_SCALARS = ("darkness", "minutes", "limit", "seeing_arcsec", "steadiness", "share_margin", "start_local",
+            "end_local", "min_alt_deg", "challenges", "catalog", "site_name", "calibration", "wide_factor")
+
+
+def checked(request: NightRequest) -> NightRequest:
+    """A copy of ``request`` with every field checked by :mod:`planner.config.fields`
+    (the same checks as the command line, profiles and plan files)."""
+    kw = {k: check(k, getattr(request, k)) for k in _SCALARS if getattr(request, k) is not None}
+    if request.date is not None:
+        kw["date"] = check("date", str(request.date) if isinstance(request.date, _dt.date) else request.date)
+    site = check_mapping("site", request.site, (*SITE_FIELDS, "name"))
+    if not isinstance(request.scopes, (list, tuple)):
+        raise InputError("the telescopes must be a list of tables ([[scopes]] in a plan file)")
+    scopes = [check_mapping("telescope", sd, (*SCOPE_FIELDS, "name")) for sd in request.scopes]
+    filters = check_filters(request.filters)
+    unknown = [c for c in filters.get("constellations", []) if constellation(c) is None]
+    if unknown:
+        raise InputError(f"--constellation {unknown[0]!r} is not an IAU constellation (abbreviation "
+                         "or Latin name, e.g. Cyg, Cygnus, Cygni, UMa, Ursae Majoris)")
+    return dataclasses.replace(request, site=site, scopes=scopes, filters=filters, **kw)
+
+
 def site_of(request: NightRequest) -> Site:
     """The request's site, with its ``min_alt_deg`` override applied."""
     d = dict(request.site)
@@ -129,16 +150,14 @@ def resolve_seeing(request: NightRequest):
     if request.seeing_arcsec is not None and request.steadiness is not None:
         raise InputError("give either --seeing (arcsec) or --steadiness (1-10), not both")
     if request.seeing_arcsec is not None:
-        s = float(request.seeing_arcsec)
-        if not 0.0 <= s <= 20.0:
-            raise InputError(f"seeing {s} arcsec is outside 0-20 (typical nights 1-3)")
+        s = check("seeing_arcsec", request.seeing_arcsec)
         return s, f"{s:g}\" FWHM as given"
     if request.steadiness is not None:
         table, origin = load_scale()
         s = steadiness_to_seeing(request.steadiness, table)
         src = "default table (an assumption)" if origin == "default" else origin
         return s, f"steadiness {float(request.steadiness):g}/10 -> {s:.2f}\" via {src}"
-    return 2.0, "2\" FWHM (default; give --seeing or --steadiness)"
+    return DEFAULT_SEEING_ARCSEC, f"{DEFAULT_SEEING_ARCSEC:g}\" FWHM (default; give --seeing or --steadiness)"
 
 
 def now_utc() -> np.datetime64:

@@ -25,6 +25,8 @@ from planner.catalogs.catalog import Catalog, load_catalog
 from planner.errors import InputError
 from planner.motion import pair_geometry
 from planner.optics.telescope import Telescope
+from planner.config.fields import DEFAULT_DARKNESS, DEFAULT_MINUTES, DEFAULT_SEEING_ARCSEC, check
+from planner.plan.night import CAUTIONS, judge_at_best
 from planner.plan.model import DARKNESS
 from planner.plan.night import CAUTIONS, judge_at_best, judge_rows
 from planner.plan.session import parse_date
@@ -174,8 +176,9 @@ def _as_scope(telescope) -> Telescope:
     return telescope
 
 
-def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcsec: float = 2.0,
-               darkness: str = "nautical", minutes: float = 10.0, calibration: str | None = None) -> dict:
+def check_pair(catalog, query_or_index, site, local_date, telescope,
+               seeing_arcsec: float = DEFAULT_SEEING_ARCSEC, darkness: str = DEFAULT_DARKNESS,
+               minutes: float = DEFAULT_MINUTES, calibration: str | None = None) -> dict:
     """Can this telescope split this pair tonight, when, and when is its season?
 
     Parameters
@@ -221,8 +224,9 @@ def check_pair(catalog, query_or_index, site, local_date, telescope, seeing_arcs
 
         (tel,), used = calibrate((tel,), calibration)
         cal_used = used[0][1] if used else None
-    if darkness not in DARKNESS:
-        raise InputError(f"darkness {darkness!r} is not one of {', '.join(DARKNESS)}")
+    darkness = check("darkness", darkness)
+    seeing_arcsec = check("seeing_arcsec", seeing_arcsec)
+    minutes = check("minutes", minutes)
     date = parse_date(None if local_date is None else str(local_date), site)
     night = night_for(site, date, darkness=darkness)
     geo = pair_geometry(small, np.datetime64(night.middle_utc, "ns"))

@@ -22,17 +22,18 @@ import math
 import numpy as np
 import pandas as pd
 
+from planner.optics.limits import RAYLEIGH_LOD
 from planner.report.safe import html_text, pdf_text
 from planner.sky.placement import alt_az_at
+from planner.units import ARCSEC_PER_RAD
 
 PALETTE = ["#1f6f8b", "#c0392b", "#7d5ba6", "#2e8b57", "#d68910", "#5d6d7e", "#a04000",
            "#117a65", "#884ea0", "#b03a2e", "#1a5276", "#7e5109"]
-RAD_ARCSEC = 206264.806
 
 
 def airy_radius_arcsec(aperture_mm: float, wavelength_nm: float = 550.0) -> float:
-    """First dark ring of the Airy pattern, 1.2197 lambda/D (Airy 1835; methods-reference s.1)."""
-    return 1.21967 * wavelength_nm * 1e-9 / (aperture_mm * 1e-3) * RAD_ARCSEC
+    """First dark ring of the Airy pattern, 1.2197 lambda/D (Airy 1835; docs/methods.md section 1)."""
+    return RAYLEIGH_LOD * wavelength_nm * 1e-9 / (aperture_mm * 1e-3) * ARCSEC_PER_RAD
 
 
 def _mpl():

@@ -15,6 +15,7 @@ import pandas as pd
 from planner.config.storage import write_output
 from planner.report.angles import dec_text, ra_text
 from planner.report.safe import csv_cell, plain_text, terminal_text
+from planner.schema import plain_value
 from planner.utc import iso_utc
 
 #: the fields every JSON object carries (the stable contract) -- all of them
@@ -23,20 +24,12 @@ CONTRACT_FIELDS = ("wds_id", "discoverer", "components", "slot_start_utc", "slot
                    "ra_deg", "dec_deg", "rho_arcsec", "theta_deg", "mag1", "mag2",
                    "alt_deg", "airmass", "limit_arcsec", "margin", "chance")
 
+def _text_safe(v):
+    """Text values without control, bidi or zero-width characters (report.safe.plain_text)."""
+    return plain_text(v) if isinstance(v, str) else v
+
+
 _TIME_COLS = ("slot_start_utc", "slot_end_utc", "best_utc")
-
-
-def _clean(v):
-    if isinstance(v, (np.floating, float)):
-        f = float(v)
-        return None if math.isnan(f) or math.isinf(f) else round(f, 6)
-    if isinstance(v, (np.integer,)):
-        return int(v)
-    if isinstance(v, (np.bool_,)):
-        return bool(v)
-    if isinstance(v, str):
-        return plain_text(v)
-    return v
 
 
 def records(schedule: pd.DataFrame) -> list[dict]:
@@ -46,7 +39,7 @@ def records(schedule: pd.DataFrame) -> list[dict]:
     for row in schedule[cols].itertuples(index=False, name=None):
         d = {}
         for c, v in zip(cols, row):
-            d[c] = iso_utc(v) if c in _TIME_COLS else _clean(v)
+            d[c] = iso_utc(v) if c in _TIME_COLS else _text_safe(plain_value(v, 6))
         out.append(d)
     return out
 
@@ -225,7 +218,7 @@ def table_lines(sched: pd.DataFrame, tz=None) -> list[str]:
     marks = _clock_marks(sched, tz)
     ids = [pair_label(r.wds_id, r.discoverer, r.components) for r in sched.itertuples(index=False)]
     w = max([22] + [len(x) for x in ids])  # the pair column widens; an identifier is never cut
-    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
+    head = (f"{'#':>2} {'time':5} {'pair':<{w}} {'name':<14} {'rho':>6} {'theta':>5} {'how':<6} {'mags':<10} "
             f"{'alt':>3} {'X':>4} {'limit':>5} {'marg':>4} {'ch%':>3} {'power':>9}  note")
     lines = [head, "-" * len(head)]
     for k, (pid, r) in enumerate(zip(ids, sched.itertuples(index=False))):
@@ -240,8 +233,9 @@ def table_lines(sched: pd.DataFrame, tz=None) -> list[str]:
             note = f"[{r.flag}] " + note
         if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
             note += f" - your note: {r.user_note}"
-        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {fmt_num(r.rho_arcsec, '6.2f')}\" "
-                     f"{fmt_num(r.theta_deg, '4.0f')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
+        star = str(getattr(r, "name", "") or "")[:14]
+        lines.append(f"{r.slot:>2} {r.slot_local:5} {pid:<{w}} {star:<14} {fmt_num(r.rho_arcsec, '6.2f')}\" "
+                     f"{fmt_num(r.theta_deg, '4.0f', '   -')} {how:<6} {mags:<10} {fmt_num(r.alt_deg, '3.0f')} "
                      f"{fmt_num(r.airmass, '4.2f')} {fmt_num(r.limit_arcsec, '5.2f')} {fmt_num(r.margin, '4.1f')} "
                      f"{fmt_num(100 * float(r.chance), '3.0f')} {power:>9}  {note}")
     return lines

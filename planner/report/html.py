@@ -38,7 +38,7 @@ th{background:#24425f;color:#fff;font-weight:600;text-align:left;padding:6px 7px
 td{padding:5px 7px;border-bottom:1px solid var(--line);vertical-align:top}
 tr:nth-child(even) td{background:var(--band)}
 td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}
-.pair{font-weight:600} .sub{color:var(--muted);font-size:11.5px}
+.pair{font-weight:600} .star{font-style:italic} .sub{color:var(--muted);font-size:11.5px}
 .flag{display:inline-block;background:#fde2c8;color:var(--warn);border-radius:4px;padding:0 5px;font-size:11px;font-weight:600}
 .chal th{background:#8a5a14}
 .scope h2{display:flex;justify-content:space-between;gap:12px;flex-wrap:wrap}
@@ -83,8 +83,9 @@ def _rows(plan, sched: pd.DataFrame) -> str:
             "<tr>"
             f'<td class="n">{E(r.slot)}</td>'
             f'<td class="n">{E(r.slot_local)}–{E(local_hm(plan, r.slot_end_utc))}{flag}</td>'
-            f'<td><span class="pair">{E(r.discoverer)} {E(r.components)}</span><br>'
-            f'<span class="sub">WDS {E(r.wds_id)} · {E(r.constellation)}</span><br>'
+            f'<td><span class="pair">{E(r.discoverer)} {E(r.components)}</span>'
+            + (f' <span class="star">{E(r.name)}</span>' if getattr(r, "name", "") else "")
+            + f'<br><span class="sub">WDS {E(r.wds_id)} · {E(r.constellation)}</span><br>'
             f'<span class="sub">{_radec(r.ra_deg, r.dec_deg)}</span></td>'
             f'<td class="n">{_f(r.rho_arcsec, ".2f")}″<br><span class="sub">{_f(r.theta_deg, ".0f")}°</span></td>'
             f"<td>{E(how)}</td>"

@@ -37,15 +37,22 @@ def render_report(rep: dict) -> str:
     mags = ""
     if rep["mag1"] is not None or rep["mag2"] is not None:
         mags = f"   mags {_f(rep['mag1'], '.2f', '?')} / {_f(rep['mag2'], '.2f', '?')}"
-    lines.append(f"{_name(rep)}   WDS {rep['wds_id']}{mags}")
+    star = f"   {rep['name']}" if rep.get("name") else ""
+    star += f" ({rep['constellation']})" if rep.get("constellation") else ""
+    lines.append(f"{_name(rep)}   WDS {rep['wds_id']}{star}{mags}")
+    if rep.get("other_pairs"):
+        lines.append("also named so: " + "; ".join(rep["other_pairs"]))
     day = calendar_date_from_jd(rep["jd"])  # the UTC day of the epoch
     lines.append(f"date        {day}  (epoch {rep['epoch_yr']:.3f}, Besselian year)")
     if rep["rho_arcsec"] is None:
         lines.append(f"separation  unknown ({rep['reason']})")
     else:
         lines.append(f"separation  {rep['rho_arcsec']:.3f}\"  +/- {_f(rep['rho_unc_arcsec'], '.3f')}\"")
-        lines.append(f"pos. angle  {rep['theta_deg']:.1f} deg  +/- {_f(rep['theta_unc_deg'], '.1f')} deg"
-                     "  (north through east)")
+        if rep["theta_deg"] is None:  # a catalogued separation without angle (BSC5)
+            lines.append("pos. angle  not catalogued")
+        else:
+            lines.append(f"pos. angle  {rep['theta_deg']:.1f} deg  +/- {_f(rep['theta_unc_deg'], '.1f')} deg"
+                         "  (north through east)")
     method = _METHOD_TEXT.get(rep["method"], rep["method"])
     if rep.get("orbit"):
         o = rep["orbit"]
@@ -213,7 +220,7 @@ def plot_pair(report, path, force: bool = False) -> Path:
         ax.plot([f["rho_arcsec"] * np.sin(thf), rep["rho_arcsec"] * np.sin(thn)],
                 [f["rho_arcsec"] * np.cos(thf), rep["rho_arcsec"] * np.cos(thn)], "--", color="gray",
                 lw=1, label="straight-line estimate")
-    if rep["rho_arcsec"] is not None:
+    if rep["rho_arcsec"] is not None and rep["theta_deg"] is not None:
         th = np.radians(rep["theta_deg"])
         e, n = rep["rho_arcsec"] * np.sin(th), rep["rho_arcsec"] * np.cos(th)
         ax.plot(e, n, "o", color="crimson", ms=8,

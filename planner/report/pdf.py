@@ -69,7 +69,7 @@ def _cover(plan, pdf, plt):
 
 
 def _table_pages(plan, pdf, plt):
-    cols = ["#", "slot", "pair", "WDS", "rho\"", "theta", "from", "mags", "alt", "X", "limit\"",
+    cols = ["#", "slot", "pair", "name", "WDS", "rho\"", "theta", "from", "mags", "alt", "X", "limit\"",
             "margin", "chance", "power", "note"]
     for sp in plan.scopes:
         sched = sp.schedule if sp.schedule is not None else pd.DataFrame()
@@ -78,7 +78,8 @@ def _table_pages(plan, pdf, plt):
             note = (f"[{r.flag}] " if r.flag else "") + ("CHALLENGE: " if r.section == "challenge" else "") + str(r.reason)
             if str(getattr(r, "user_note", "") or "").strip() and str(r.user_note) != "nan":
                 note += f" - your note: {r.user_note}"
-            rows.append([str(r.slot), f"{r.slot_local}", f"{r.discoverer} {r.components}".strip(), str(r.wds_id),
+            rows.append([str(r.slot), f"{r.slot_local}", f"{r.discoverer} {r.components}".strip(),
+                         f"{getattr(r, 'name', '') or ''} {r.constellation}".strip(), str(r.wds_id),
                          _f(r.rho_arcsec, ".2f"), _f(r.theta_deg, ".0f"), str(r.method),
                          f"{_f(r.mag1, '.1f')}/{_f(r.mag2, '.1f')}", _f(r.alt_deg, ".0f"), _f(r.airmass, ".2f"),
                          _f(r.limit_arcsec, ".2f"), _f(r.margin, ".2f"), _f(100 * float(r.chance), ".0f") + "%",

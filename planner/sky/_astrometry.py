@@ -97,13 +97,13 @@ _EOP_CACHE_FORMAT = 1
 
 
 def _eop_cache_path():
-    """Cache file of the Earth-orientation arrays, named after the bundled IERS data version."""
-    import astropy
-    import astropy_iers_data
+    """Cache file of the Earth-orientation arrays, named after the bundled IERS data version
+    (versions from the package metadata: importing astropy only for a version string is slow)."""
+    from importlib import metadata
 
     from planner.config.storage import user_dir
 
-    tag = f"{astropy_iers_data.__version__}-{astropy.__version__}-{_EOP_CACHE_FORMAT}"
+    tag = f"{metadata.version('astropy-iers-data')}-{metadata.version('astropy')}-{_EOP_CACHE_FORMAT}"
     return user_dir("cache") / f"eop-{tag}.npz"
 
 
@@ -151,10 +151,15 @@ def _load_eop() -> dict:
     global _eop
     if _eop is not None:
         return _eop
-    path = _eop_cache_path()
-    if path.exists():
+    from planner.errors import PlannerError
+
+    try:
+        path = _eop_cache_path()
+    except PlannerError:  # no cache folder (cannot be created): compute, keep nothing
+        path = None
+    if path is not None and path.exists():
         try:
-            with np.load(path) as z:
+            with np.load(path, allow_pickle=False) as z:
                 eop = {k: np.asarray(z[k], float) for k in ("mjd", "ut1_tai", "xp", "yp")}
             if len(eop["mjd"]) > 1 and all(len(v) == len(eop["mjd"]) for v in eop.values()):
                 _eop = eop
@@ -174,7 +179,8 @@ def _load_eop() -> dict:
     buf = io.BytesIO()
     np.savez(buf, **eop)
     try:
-        atomic_write_bytes(path, buf.getvalue())
+        if path is not None:
+            atomic_write_bytes(path, buf.getvalue())
     except Exception:  # a read-only cache folder only costs speed
         pass
     _eop = eop

@@ -3,7 +3,7 @@
 Every model here is a plain numpy function of angles in degrees; models the
 field has several of are chosen by name from one dict per concept
 (:data:`AIRMASS_MODELS`, :data:`REFRACTION_MODELS`).  Formulas and check values
-are those of the project's methods reference, sections 4, 6 and 8.
+are those of docs/methods.md, sections 4, 6 and 8.
 
 Conventions
 -----------
@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from planner.errors import InputError
+from planner.units import ARCSEC_PER_RAD
 from planner.units import wrap_public
 
 __all__ = [
@@ -255,7 +256,7 @@ def dispersion_arcsec(alt_deg, band_nm=VISUAL_BAND_NM, pressure_hpa=1013.25,
     Filippenko (1982, PASP 94, 715): Delta R = 206265 [n(l1) - n(l2)] tan z.
     Below 15 deg altitude tan z over-states refraction, so there the Bennett
     (1982) refraction is scaled by (n1 - n2) / (n(550 nm) - 1) instead
-    (methods reference, section 8).  Blue is displaced toward the zenith.  NaN
+    (docs/methods.md section 8).  Blue is displaced toward the zenith.  NaN
     below the horizon.
     """
     h = _asarray(alt_deg)
@@ -265,7 +266,7 @@ def dispersion_arcsec(alt_deg, band_nm=VISUAL_BAND_NM, pressure_hpa=1013.25,
     dn = n1 - n2
     with np.errstate(divide="ignore", invalid="ignore"):
         tanz = 1.0 / np.tan(np.radians(np.maximum(h, 1e-6)))
-        high = 206264.806 * dn * tanz
+        high = ARCSEC_PER_RAD * dn * tanz
         nref = refractivity_filippenko1982(550.0, pressure_hpa, temperature_c, water_vapour_hpa)
         low = refraction_bennett1982(h, pressure_hpa, temperature_c) * 60.0 * dn / nref
     out = np.where(h >= 15.0, high, low)
@@ -280,7 +281,7 @@ def nl_from_mag(mag_arcsec2):
     """Surface brightness in nanolamberts: B = 34.08 exp(20.7233 - 0.92104 S).
 
     Conversion used with Schaefer (1990) and Krisciunas & Schaefer (1991);
-    equivalently 34.08 x 10^(9 - 0.4 S) (methods reference, section 5).
+    equivalently 34.08 x 10^(9 - 0.4 S) (docs/methods.md section 5).
     """
     return 34.08 * np.exp(20.7233 - 0.92104 * _asarray(mag_arcsec2))
 

@@ -27,6 +27,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from planner.config.fields import DARKNESS_SUN_ALT_DEG, DEFAULT_DARKNESS
 from planner.errors import InputError
 from planner.sky._astrometry import NS_PER_DAY, to_utc64
 from planner.sky.site import Site
@@ -34,12 +35,9 @@ from planner.units import wrap_public
 
 __all__ = ["Night", "night_for", "DARKNESS_LEVELS", "sun_alt_deg", "sun_sep_deg", "moon_position"]
 
-#: Darkness level name -> (Sun altitude in deg, dark_twilight_day states that count as dark).
-DARKNESS_LEVELS = {
-    "civil": (-6.0, 2),
-    "nautical": (-12.0, 1),
-    "astronomical": (-18.0, 0),
-}
+#: Darkness level name -> (Sun altitude in deg, dark_twilight_day states that count as dark);
+#: the levels and their Sun altitudes live in planner.config.fields.
+DARKNESS_LEVELS = {name: (alt, state) for (name, alt), state in zip(DARKNESS_SUN_ALT_DEG.items(), (2, 1, 0))}
 
 #: Number of Moon samples through the dark window.
 MOON_SAMPLES = 9
@@ -273,7 +271,7 @@ def _parse_date(local_date) -> _dt.date:
     raise InputError(f"date {local_date!r} is not understood; give YYYY-MM-DD")
 
 
-def night_for(site: Site, local_date, darkness: str = "nautical") -> Night:
+def night_for(site: Site, local_date, darkness: str = DEFAULT_DARKNESS) -> Night:
     """Sun, twilight, dark window and Moon for the evening of ``local_date`` (site's zone) to next morning.
 
     ``darkness``: ``"civil"`` (-6 deg), ``"nautical"`` (-12 deg, default) or

@@ -28,20 +28,11 @@ import math
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from planner.config.fields import DEFAULT_MIN_ALT_DEG, check, check_zone
 from planner.errors import InputError
 from planner.units import convert_fields
 
 __all__ = ["Site", "Horizon"]
-
-
-def _num(name: str, value, lo: float, hi: float, unit: str) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} {value!r} is not a number; allowed {lo:g} to {hi:g} {unit}") from None
-    if not math.isfinite(v) or v < lo or v > hi:
-        raise InputError(f"{name} {value!r} is out of range; allowed {lo:g} to {hi:g} {unit}")
-    return v
 
 
 @dataclass(frozen=True)
@@ -130,7 +121,7 @@ class Site:
     lon_deg: float
     elevation_m: float = 0.0
     tz: str = "UTC"
-    min_alt_deg: float = 20.0
+    min_alt_deg: float = DEFAULT_MIN_ALT_DEG
     horizon: Horizon | None = None
     pressure_hpa: float | None = None
     temperature_c: float = 10.0
@@ -147,22 +138,17 @@ class Site:
     def __post_init__(self):
         convert_fields(self)  # astropy Quantity fields (52 * u.deg, 95 * u.m) to the unit of their name
         set_ = object.__setattr__
-        set_(self, "lat_deg", _num("latitude", self.lat_deg, -90.0, 90.0, "deg (north positive)"))
-        lon = _num("longitude", self.lon_deg, -180.0, 360.0, "deg east (or 0 to 360)")
-        if lon > 180.0:
-            lon -= 360.0
-        set_(self, "lon_deg", lon)
-        set_(self, "elevation_m", _num("elevation", self.elevation_m, -500.0, 9000.0, "m"))
-        set_(self, "min_alt_deg", _num("minimum altitude", self.min_alt_deg, 0.0, 80.0, "deg"))
-        set_(self, "temperature_c", _num("temperature", self.temperature_c, -60.0, 50.0, "degC"))
-        set_(self, "sky_mag_zenith", _num("zenith sky brightness", self.sky_mag_zenith, 14.0, 23.0, "mag/arcsec^2"))
-        set_(self, "extinction_k", _num("extinction coefficient", self.extinction_k, 0.0, 2.0, "mag/airmass"))
+        for key in ("lat_deg", "lon_deg", "elevation_m", "min_alt_deg", "temperature_c", "sky_mag_zenith",
+                    "extinction_k"):
+            set_(self, key, float(check(key, getattr(self, key))))
+        if self.lon_deg > 180.0:
+            set_(self, "lon_deg", self.lon_deg - 360.0)
         if self.pressure_hpa is None:
             from planner.sky.atmosphere import pressure_from_elevation_hpa
 
             set_(self, "pressure_hpa", float(pressure_from_elevation_hpa(self.elevation_m)))
         else:
-            set_(self, "pressure_hpa", _num("pressure", self.pressure_hpa, 0.0, 1100.0, "hPa"))
+            set_(self, "pressure_hpa", float(check("pressure_hpa", self.pressure_hpa)))
         if self.horizon is not None and not isinstance(self.horizon, Horizon):
             if isinstance(self.horizon, (str, Path)):
                 set_(self, "horizon", Horizon.read(self.horizon))
@@ -250,14 +236,6 @@ def computer_tz() -> str:
 
 
 def _zone_for(name):
-    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+    from zoneinfo import ZoneInfo
 
-    if not isinstance(name, str) or not name.strip():
-        raise InputError(f"time zone {name!r} is not valid; give an IANA name such as 'Europe/Paris' or 'UTC'")
-    try:
-        return ZoneInfo(name.strip())
-    except (ZoneInfoNotFoundError, ValueError, OSError):
-        raise InputError(
-            f"time zone {name!r} is unknown; give an IANA name such as 'Europe/Paris', "
-            "'America/New_York' or 'UTC' (on Windows install the 'tzdata' package)"
-        ) from None
+    return ZoneInfo(check_zone(name))
