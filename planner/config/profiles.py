@@ -71,7 +71,7 @@ def _check_name(name: str) -> str:
     DEL, C1), a format character (bidirectional overrides, zero-width marks),
     a line or paragraph separator, or an undecodable byte from the command
     line (``\\udcXX``), so a name can always be shown as it was typed."""
-    from planner.report.safe import hidden_characters
+    from planner.config.text import hidden_characters
 
     name = str(name).strip()
     bad = hidden_characters(name)

@@ -24,22 +24,14 @@ from __future__ import annotations
 
 import html
 import re
-import unicodedata
+
+from planner.config.text import hidden_characters  # noqa: F401  (one home; re-exported)
 
 # C0 (but tab, LF, CR), DEL, C1; bidi embeddings, overrides and isolates;
 # zero-width space/joiners, word joiner, invisible operators, BOM; line and
 # paragraph separators; lone surrogates.
 _HIDDEN = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u200b-\u200f\u2028-\u202e"
                      "\u2060-\u2069\ufeff\ud800-\udfff]")
-
-
-def hidden_characters(value: str) -> list[str]:
-    """The characters of ``value`` that no output shows as they are: control
-    characters (tab, CR and LF included), format characters (Unicode class Cf:
-    bidi controls, zero-width marks), line/paragraph separators and lone
-    surrogates."""
-    return [ch for ch in value
-            if unicodedata.category(ch) in ("Cc", "Cf", "Cs", "Zl", "Zp")]
 
 
 def plain_text(value, keep: str = "\n\t") -> str:
