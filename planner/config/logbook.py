@@ -272,9 +272,15 @@ class Logbook:
         con = self._con
         con.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
         # Read-only checks first: nothing is written to a file that is not ours.
-        app_id = con.execute("PRAGMA application_id").fetchone()[0]
-        version = con.execute("PRAGMA user_version").fetchone()[0]
-        n_objects = con.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+        # One read transaction, so the three reads see one state of the file even while
+        # another process is creating it (separate autocommit reads could straddle its commit).
+        con.execute("BEGIN")
+        try:
+            app_id = con.execute("PRAGMA application_id").fetchone()[0]
+            version = con.execute("PRAGMA user_version").fetchone()[0]
+            n_objects = con.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+        finally:
+            con.execute("COMMIT")
         fresh = app_id == 0 and version == 0 and n_objects == 0
         if not fresh:
             if app_id != APPLICATION_ID:
