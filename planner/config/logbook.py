@@ -252,7 +252,7 @@ class Logbook:
         try:
             self._con = sqlite3.connect(str(self.path), timeout=BUSY_TIMEOUT_S, isolation_level=None)
             self._con.row_factory = sqlite3.Row
-            self._open()
+            self._open_retrying()
         except sqlite3.DatabaseError as exc:
             self.close()
             raise self._damaged(str(exc)) from None
@@ -267,6 +267,24 @@ class Logbook:
             f"the observation log {self.path} is damaged or not a splitplan log ({why}); it was left "
             f"untouched: restore a copy made with 'splitplan log backup', or move the file aside to "
             f"start a new log")
+
+    def _open_retrying(self) -> None:
+        """:meth:`_open`, tried again while another process holds the file (switching a new
+        file to WAL needs it alone, and SQLite answers 'locked' at once there, without
+        waiting for the busy timeout)."""
+        import time
+
+        deadline = time.monotonic() + BUSY_TIMEOUT_S
+        while True:
+            try:
+                return self._open()
+            except sqlite3.OperationalError as exc:
+                text = str(exc).lower()
+                if ("locked" not in text and "busy" not in text) or time.monotonic() > deadline:
+                    raise
+                if self._con.in_transaction:
+                    self._con.execute("ROLLBACK")
+                time.sleep(0.02)
 
     def _open(self) -> None:
         con = self._con
